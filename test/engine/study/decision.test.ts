@@ -1,0 +1,161 @@
+import { describe, it, expect } from 'vitest';
+import seedrandom from 'seedrandom';
+import {
+  alphaSpent,
+  lookSchedule,
+  decideLook,
+  decideSequential,
+  jointTest,
+  thresholdAmount,
+  type FactorEstimate,
+} from '../../../src/engine/study/decision.ts';
+import { normQuantile } from '../../../src/engine/study/stats.ts';
+
+const noBudget = { stepHalving: 0, calibration: 0, exerciseGap: null };
+const est = (factor: string, delta: number, se: number, b = 0): FactorEstimate => ({
+  factor,
+  delta,
+  se,
+  budget: { stepHalving: b, calibration: 0, exerciseGap: null },
+});
+
+describe('alpha spending', () => {
+  // Lan & DeMets (1983), Biometrika 70(3) p. 659: both spending functions spend exactly α by t = 1 and nothing at t = 0.
+  it('spends α in total and nothing at the start', () => {
+    for (const kind of ['obrienFleming', 'pocock'] as const) {
+      expect(alphaSpent(kind, 0.05, 1)).toBeCloseTo(0.05, 12);
+      expect(alphaSpent(kind, 0.05, 0)).toBe(0);
+    }
+  });
+  // Lan & DeMets (1983): α₁(t) = 2 − 2Φ(z_{α/2}/√t); at t = 1/4, z/√t = 2·1.959964 = 3.919928 → 2(1 − Φ(3.919928)) ≈ 8.86e−5
+  // (tail value from A&S 1964 Table 26.1 at x ≈ 3.92: 1 − Φ = 4.43e−5).
+  it("the O'Brien–Fleming type spends almost nothing early", () => {
+    expect(alphaSpent('obrienFleming', 0.05, 0.25)).toBeCloseTo(8.86e-5, 6);
+    // Pocock type at t = 1/4: 0.05·ln(1 + (e − 1)/4) = 0.05·ln(1.429570) (hand computation) = 0.017866.
+    expect(alphaSpent('pocock', 0.05, 0.25)).toBeCloseTo(0.017866, 5);
+  });
+  it('the doubling schedule ends at the final path count and its increments add up to α', () => {
+    const s = lookSchedule({ firstPaths: 1000, finalPaths: 8000, alpha: 0.05, spending: 'obrienFleming' });
+    expect(s.map((l) => l.paths)).toEqual([1000, 2000, 4000, 8000]);
+    expect(s.reduce((a, l) => a + l.increment, 0)).toBeCloseTo(0.05, 12);
+    const odd = lookSchedule({ firstPaths: 1000, finalPaths: 5000, alpha: 0.05, spending: 'pocock' });
+    expect(odd.map((l) => l.paths)).toEqual([1000, 2000, 4000, 5000]);
+  });
+});
+
+describe('threshold', () => {
+  // common practice: 1 bp of notional = 1e-4 × notional.
+  it('converts basis points of notional, amounts and bid–offer fractions', () => {
+    expect(thresholdAmount({ kind: 'bp', value: 5 }, 1_000_000)).toBeCloseTo(500, 9);
+    expect(thresholdAmount({ kind: 'amount', value: 250 }, 1)).toBe(250);
+    expect(thresholdAmount({ kind: 'bidOffer', fraction: 0.25, width: 0.8 }, 1)).toBeCloseTo(0.2, 12);
+  });
+  it('refuses a zero threshold, naming the field', () => {
+    expect(() => thresholdAmount({ kind: 'bp', value: 0 }, 100)).toThrow(/settings\.threshold\.value/);
+  });
+});
+
+describe('decision rule at one look', () => {
+  // The rule's inequalities (DESIGN step 7) with one factor: z = Φ⁻¹(1 − α/2) = 1.959964 at α = 0.05.
+  it('keeps a factor whose lower bound clears the threshold', () => {
+    // |Δ| − z·SE − b = 10 − 1.96 − 1 = 7.04 > τ = 5 → keep.
+    const [d] = decideLook([est('rd', -10, 1, 1)], 5, 0.05);
+    expect(d!.verdict).toBe('keep');
+    expect(d!.z).toBeCloseTo(1.959964, 5);
+  });
+  it('drops a factor whose upper bound is below the threshold', () => {
+    // |Δ| + z·SE + b = 1 + 1.96 + 1 = 3.96 < 5 → drop.
+    expect(decideLook([est('sv', 1, 1, 1)], 5, 0.05)[0]!.verdict).toBe('drop');
+  });
+  it('reports undecided when the interval straddles the threshold, never rounding it', () => {
+    // 5.5 − 1.96 < 5 < 5.5 + 1.96 → neither inequality holds.
+    const d = decideLook([est('sv', 5.5, 1)], 5, 0.05)[0]!;
+    expect(d.verdict).toBe('undecided');
+    // The budget alone can make a clear estimate undecided: 4 + 0.01·1.96 + 2 > 5 and 4 − ... < 5.
+    expect(decideLook([est('rd', 4, 0.01, 2)], 5, 0.05)[0]!.verdict).toBe('undecided');
+  });
+  // Holm (1979), Scand. J. Statist. 6: step-down at α/m, α/(m−1), ...; stops at the first non-rejection.
+  it("applies Holm's step-down across factors", () => {
+    // Three factors, SE = 1, τ = 0, b = 0 would be invalid (τ > 0 required), so take τ = 1 and Δ = 1 + s, statistic s.
+    // s = 2.3: p = 0.0214 ≤ 0.05/3 = 0.0167? No → with Holm nothing is decided, though alone (p ≤ 0.05) it would be.
+    const alone = decideLook([est('a', 3.3, 1)], 1, 0.05)[0]!;
+    expect(alone.verdict).toBe('keep');
+    const three = decideLook([est('a', 3.3, 1), est('b', 1.2, 1), est('c', 1.1, 1)], 1, 0.05);
+    expect(three.map((r) => r.verdict)).toEqual(['undecided', 'undecided', 'undecided']);
+    // s = 2.5 (p = 0.0124 ≤ 0.0167) and s = 2.1 (p = 0.0357 > 0.025): first decided, second stops the chain.
+    const two = decideLook([est('a', 3.5, 1), est('b', 3.1, 1), est('c', 1.0, 1)], 1, 0.05);
+    expect(two.map((r) => r.verdict)).toEqual(['keep', 'undecided', 'undecided']);
+    expect(two[0]!.z).toBeCloseTo(normQuantile(1 - 0.05 / 6), 10);
+  });
+  it('refuses a zero threshold', () => {
+    expect(() => decideLook([est('a', 1, 1)], 0, 0.05)).toThrow(/threshold/);
+  });
+});
+
+describe('sequential decision', () => {
+  it('keeps the first verdict reached and records its look', () => {
+    const schedule = lookSchedule({ firstPaths: 100, finalPaths: 400, alpha: 0.05, spending: 'pocock' });
+    const looks = [[est('rd', 20, 1)], [est('rd', 5.2, 1)], [est('rd', 5.1, 0.5)]];
+    const [r] = decideSequential({ looks, schedule, tau: 5 });
+    expect(r!.verdict).toBe('keep');
+    expect(r!.decidedAtLook).toBe(0);
+    expect(r!.history).toHaveLength(3);
+  });
+
+  // Property of the design, argued independently: by the union bound over looks and Holm within a look, the chance
+  // of any wrong verdict is at most α. Simulated here at the worst case |Δ| = τ (every verdict wrong-or-undecided
+  // is then 'keep' or 'drop' = wrong), with Brownian-motion estimates Δ̂_j = τ + W(n_j)/n_j (common practice).
+  it('holds the family-wise error at α over looks and factors (seeded simulation)', () => {
+    const rng = seedrandom('decision-error-rate');
+    const gauss = () => {
+      const u = Math.max(rng(), 1e-300);
+      return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * rng());
+    };
+    const alpha = 0.1;
+    const schedule = lookSchedule({ firstPaths: 1, finalPaths: 8, alpha, spending: 'pocock' });
+    const reps = 4000;
+    let wrong = 0;
+    for (let r = 0; r < reps; r++) {
+      const sums = [0, 0];
+      let prevN = 0;
+      const looks: FactorEstimate[][] = [];
+      for (const l of schedule) {
+        const dn = l.paths - prevN;
+        prevN = l.paths;
+        for (let f = 0; f < 2; f++) sums[f]! += Math.sqrt(dn) * gauss();
+        looks.push(
+          [0, 1].map((f) => ({
+            factor: `f${f}`,
+            delta: 1 + sums[f]! / l.paths,
+            se: 1 / Math.sqrt(l.paths),
+            budget: noBudget,
+          })),
+        );
+      }
+      const res = decideSequential({ looks, schedule, tau: 1 });
+      if (res.some((x) => x.verdict !== 'undecided')) wrong++;
+    }
+    const rate = wrong / reps;
+    // Binomial SE at the bound: √(α(1−α)/reps) = 0.0047; allow 3 SE above α.
+    expect(rate, `wrong-verdict rate ${rate}`).toBeLessThan(
+      alpha + 3 * Math.sqrt((alpha * (1 - alpha)) / reps),
+    );
+  });
+});
+
+describe('joint test', () => {
+  it('confirms a reduced model whose total difference is clearly below τ, rejects one clearly above', () => {
+    expect(
+      jointTest({ dropped: ['sv'], difference: 0.5, se: 0.1, budget: 0.1, tau: 1, alpha: 0.05 }).outcome,
+    ).toBe('confirmed');
+    expect(
+      jointTest({ dropped: ['sv', 'rd'], difference: -3, se: 0.1, budget: 0.1, tau: 1, alpha: 0.05 }).outcome,
+    ).toBe('rejected');
+    expect(
+      jointTest({ dropped: ['sv'], difference: 1, se: 0.1, budget: 0, tau: 1, alpha: 0.05 }).outcome,
+    ).toBe('inconclusive');
+    expect(jointTest({ dropped: [], difference: 0, se: 0, budget: 0, tau: 1, alpha: 0.05 }).outcome).toBe(
+      'nothingDropped',
+    );
+  });
+});
