@@ -1,2 +1,5 @@
 export * from './normal.ts';
 export * from './complex.ts';
+export * from './quadrature.ts';
+export * from './roots.ts';
+export * from './linalg.ts';
