@@ -1,0 +1,214 @@
+/**
+ * Plain-data shapes of a factor study: its input (deal, markets, settings) and the saved study file.
+ * All amounts are in the deal's payment currency at the valuation date; times are years (ACT/365F).
+ */
+import type { DealAnalysis, DealInput } from '../deal/types.ts';
+import type { MarketSnapshot } from '../market/types.ts';
+import type { VariantSpec } from '../simulation/types.ts';
+import type { FactorLookDecision, JointTest, Look, SpendingKind, Threshold, Verdict } from './decision.ts';
+import type { FactorId, FactorRule, RuleSettings } from './rules.ts';
+
+/** Format tag of a saved study. */
+export const STUDY_FORMAT = 'factor-triage/study@1' as const;
+
+/** Name of the tool that writes study files. */
+export const TOOL_NAME = 'factor-triage';
+
+/** How stochastic factors are added to a variant. */
+export type CalibrationMode =
+  /** Every variant is refitted to the same instruments (DESIGN step 5). */
+  | 'fair'
+  /** A factor is added without refitting the rest (labelled alternative: measures miscalibration too). */
+  | 'naive';
+
+/** Settings of one study, all stored in the study file. */
+export interface StudySettings {
+  /** Run seed (a string or a non-negative safe integer). */
+  seed: string | number;
+  /** Final path count. */
+  paths: number;
+  /** Path count at the first look; looks double from here to `paths`. */
+  firstPaths: number;
+  /** Paths per batch (the unit of work; results do not depend on the worker count). */
+  batchSize: number;
+  /** Largest simulation step (years). */
+  maxStep: number;
+  /** Heston scheme: 'qe' (Andersen 2008) or the labelled alternative 'euler'. */
+  scheme: 'qe' | 'euler';
+  /** Family-wise error rate over all looks and factors. */
+  alpha: number;
+  spending: SpendingKind;
+  /** Materiality threshold on price. */
+  threshold: Threshold;
+  calibration: CalibrationMode;
+  /** Hedge ratios: bump sizes and thresholds (null: not computed). */
+  greeks: GreekSettings | null;
+  /** Correlation sweeps over the market's plausible ranges. */
+  sweeps: { points: number } | null;
+  /** The local-volatility diagnostic beside the ladder. */
+  localVol: boolean;
+  rules: RuleSettings;
+}
+
+/** Bump sizes and materiality thresholds of the hedge ratios. */
+export interface GreekSettings {
+  /** Relative spot bump (sticky moneyness: the whole path is rescaled), e.g. 0.01. */
+  spotBump: number;
+  /** Parallel zero-rate shift (absolute), e.g. 1e-4. */
+  rateBump: number;
+  /** Absolute shift of every implied vol in the grid, e.g. 0.01 (one vol point); each variant is recalibrated. */
+  volBump: number;
+  /** Thresholds: delta in currency per 1% spot move, vega per vol point, rho per basis point. */
+  deltaThreshold: number;
+  vegaThreshold: number;
+  rhoThreshold: number;
+}
+
+/** What a study is run on. */
+export interface StudyInput {
+  deal: DealInput;
+  /** First: the pricing snapshot; others (other dates) measure parameter and verdict stability. */
+  markets: MarketSnapshot[];
+  settings: StudySettings;
+}
+
+/** An estimate with its Monte Carlo standard error. */
+export interface ValueSe {
+  value: number;
+  se: number;
+}
+
+/** One calibration instrument's fit: market, model (analytic) and model by Monte Carlo on the study's paths. */
+export interface FitRow {
+  instrument: string;
+  /** Market quote (implied vol, or rate vol). */
+  marketVol: number;
+  /** The variant's own pricer, in vol terms. */
+  modelVol: number;
+  /** Price error model − market (currency per unit notional of the instrument). */
+  priceError: number;
+  /** Monte Carlo reprice on the study's paths minus market price, with SE (evidence of fairness). */
+  mcError: ValueSe | null;
+}
+
+/** One model variant of the ladder. */
+export interface LadderVariant {
+  id: string;
+  label: string;
+  /** Bit mask over the candidate factors (bit i = candidates[i]). */
+  mask: number;
+  factors: FactorId[];
+  /** Role in the study. */
+  role: 'ladder' | 'localVol' | 'naive';
+  spec: VariantSpec;
+  calibration: {
+    /** exact / approximate / none: whether pricing the instruments used a characteristic function. */
+    characteristicFunction: 'exact' | 'approximate' | 'none';
+    rmseVol: number;
+    maxAbsVolError: number;
+    seconds: number;
+    fit: FitRow[];
+    warnings: string[];
+    /** Feller ratio 2κθ/σ² of each Heston equity (≥ 1: variance stays positive). */
+    feller: Record<string, number>;
+  };
+}
+
+/** Result of one verdict, price or a hedge ratio. */
+export interface FactorVerdict {
+  factor: FactorId;
+  /** What the rules said. */
+  status: FactorRule['status'];
+  verdict: Verdict | 'required' | 'notNeeded';
+  /** Δ (richest − richest without it), SE, budget and the decision row; null when not simulated. */
+  decision: FactorLookDecision | null;
+  decidedAtLook: number | null;
+  reason: string;
+}
+
+export interface GreekVerdict {
+  greek: 'delta' | 'vega' | 'rho';
+  factor: FactorId;
+  threshold: number;
+  decision: FactorLookDecision;
+}
+
+/** One point of a correlation sweep. */
+export interface SweepPoint {
+  rho: number;
+  price: ValueSe;
+  /** Per candidate factor, Δ at this correlation. */
+  deltas: Record<string, ValueSe>;
+}
+
+export interface Sweep {
+  /** Driver pair `A|B` as in the market's correlationRanges. */
+  pair: string;
+  range: [number, number];
+  base: number;
+  points: SweepPoint[];
+  /** Price band over the range (max − min of the richest variant's price). */
+  band: number;
+  /** Factors whose Δ exceeds τ somewhere in the range (beyond z·SE). */
+  materialSomewhere: string[];
+  /** The richest price moves by more than τ across the range. */
+  priceMovesMaterially: boolean;
+}
+
+/** Results of the simulation. */
+export interface StudyResults {
+  looks: Look[];
+  /** Price of each ladder variant (same order as `ladder.variants`). */
+  prices: ValueSe[];
+  /** Δ per candidate factor at each look (convergence). */
+  convergence: { paths: number; deltas: Record<string, ValueSe>; richest: ValueSe }[];
+  tau: number;
+  joint: JointTest | null;
+  shapley: { factor: FactorId; value: number; se: number }[];
+  greeks: { variant: string; delta: ValueSe; vega: ValueSe | null; rho: ValueSe }[] | null;
+  greekVerdicts: GreekVerdict[];
+  sweeps: Sweep[];
+  /** Local-vol split of the stochastic-vol effect (deterministic rates). */
+  localVol: { smile: ValueSe; dynamics: ValueSe; total: ValueSe } | null;
+  /** Spread of prices across variants that fit the market within tolerance. */
+  modelRisk: { min: number; max: number; spread: number; variants: string[] };
+  /** Step-halving change per factor's Δ. */
+  stepHalving: Record<string, number>;
+  /** Other snapshots: per date, the verdicts and calibrated parameters. */
+  stability: {
+    date: string;
+    verdicts: Record<string, string>;
+    params: Record<string, Record<string, number>>;
+  }[];
+}
+
+/** Wall-time split of a run (seconds); excluded from the bit-identity comparison, included in the hash. */
+export interface StudyTimings {
+  total: number;
+  calibration: number;
+  simulation: number;
+  payoff: number;
+  perVariant: Record<string, number>;
+  workers: number;
+}
+
+/** The saved study file. */
+export interface SavedStudy {
+  format: typeof STUDY_FORMAT;
+  tool: { name: string; version: string };
+  input: StudyInput;
+  analysis: DealAnalysis;
+  rules: { factors: FactorRule[]; notes: string[] };
+  candidates: FactorId[];
+  required: FactorId[];
+  ladder: LadderVariant[];
+  results: StudyResults;
+  verdicts: FactorVerdict[];
+  /** The recommended model: factors kept, required, or undecided (kept to be safe). */
+  recommended: { factors: FactorId[]; variant: string; summary: string };
+  warnings: string[];
+  limitations: string[];
+  timings: StudyTimings;
+  /** SHA-256 (hex) of the canonical JSON of this object without the `hash` member. */
+  hash: string;
+}
