@@ -1,0 +1,4 @@
+export * from './types.ts';
+export * from './curve.ts';
+export * from './dates.ts';
+export * from './equity.ts';
