@@ -1,0 +1,3 @@
+export * from './protocol.ts';
+export * from './serveEngine.ts';
+export * from './createEngineClient.ts';
