@@ -1,0 +1,124 @@
+/**
+ * Dates inside a deal file: ISO `YYYY-MM-DD` text or year fractions, turned into year fractions ACT/365F from
+ * the valuation date (ACT/365F: actual days / 365, ISDA 2006 Definitions §4.16(d)), and schedules rolled by
+ * calendar days, weekdays, weeks, months or years (no holiday calendar; common practice for a first-cut model).
+ */
+import { fail } from '../errors.ts';
+import type { DateInput, ScheduleInput } from './types.ts';
+
+const ISO = /^(\d{4})-(\d{2})-(\d{2})$/;
+const DAY_MS = 86_400_000;
+
+/** Day number (days since 1970-01-01, UTC) of an ISO date; fails naming `field` when it is not a real date. */
+export function isoDayNumber(field: string, text: string): number {
+  const m = ISO.exec(text);
+  if (m) {
+    const y = Number(m[1]);
+    const mo = Number(m[2]);
+    const d = Number(m[3]);
+    const ms = Date.UTC(y, mo - 1, d);
+    const back = new Date(ms);
+    if (back.getUTCFullYear() === y && back.getUTCMonth() === mo - 1 && back.getUTCDate() === d)
+      return ms / DAY_MS;
+  }
+  return fail(
+    'E_BAD_DATE',
+    field,
+    'must be an ISO date YYYY-MM-DD or a year fraction',
+    text,
+    'write e.g. 2027-06-30 or 1.5',
+  );
+}
+
+/** Converts a date input to a year fraction (ACT/365F) from the valuation date (a day number, or null if absent). */
+export function toYearFraction(field: string, value: DateInput, valuationDay: number | null): number {
+  if (typeof value === 'number') {
+    if (!Number.isFinite(value) || value < 0)
+      fail('E_BAD_DATE', field, 'must be a year fraction >= 0', value);
+    return value;
+  }
+  const day = isoDayNumber(field, value);
+  if (valuationDay === null)
+    fail(
+      'E_NO_VALUATION_DATE',
+      field,
+      'is an ISO date, which needs the deal valuationDate',
+      value,
+      'add "valuationDate": "YYYY-MM-DD"',
+    );
+  const t = (day - valuationDay) / 365;
+  if (t < 0) fail('E_DATE_BEFORE_VALUATION', field, 'must not be before the valuation date', value);
+  return t;
+}
+
+const STEP = /^([1-9]\d{0,3})([DBWMY])$/;
+
+function addMonths(day: number, months: number, anchorDom: number): number {
+  const d = new Date(day * DAY_MS);
+  const y = d.getUTCFullYear();
+  const m = d.getUTCMonth() + months;
+  const last = new Date(Date.UTC(y, m + 1, 0)).getUTCDate();
+  return Date.UTC(y, m, Math.min(anchorDom, last)) / DAY_MS;
+}
+
+/**
+ * Expands a schedule to sorted, distinct year fractions. Month and year steps roll from the start date and keep its
+ * day of month (clipped to the month's end); with year-fraction inputs a month is 1/12 year and a day 1/365.
+ */
+export function expandSchedule(field: string, s: ScheduleInput, valuationDay: number | null): number[] {
+  let times: number[];
+  if ('dates' in s) {
+    times = s.dates.map((d, i) => toYearFraction(`${field}.dates[${i}]`, d, valuationDay));
+  } else {
+    const m = STEP.exec(s.every);
+    if (!m)
+      fail('E_BAD_STEP', `${field}.every`, 'must be a count and a unit D, B, W, M or Y (e.g. 3M)', s.every);
+    const n = Number(m[1]);
+    const unit = m[2]!;
+    const t0 = toYearFraction(`${field}.start`, s.start, valuationDay);
+    const t1 = toYearFraction(`${field}.end`, s.end, valuationDay);
+    if (!(t1 > t0)) fail('E_BAD_SCHEDULE', `${field}.end`, 'must be after the start', s.end);
+    times = [];
+    const maxDates = 20_000;
+    if (typeof s.start === 'string' && typeof s.end === 'string' && valuationDay !== null) {
+      const d0 = isoDayNumber(`${field}.start`, s.start);
+      const d1 = isoDayNumber(`${field}.end`, s.end);
+      const dom = new Date(d0 * DAY_MS).getUTCDate();
+      let bday = d0;
+      for (let i = 1; times.length < maxDates; i++) {
+        let d: number;
+        if (unit === 'D') d = d0 + n * i;
+        else if (unit === 'W') d = d0 + 7 * n * i;
+        else if (unit === 'M') d = addMonths(d0, n * i, dom);
+        else if (unit === 'Y') d = addMonths(d0, 12 * n * i, dom);
+        else {
+          // weekdays: step n business days (Monday–Friday)
+          let k = 0;
+          while (k < n) {
+            bday += 1;
+            const wd = new Date(bday * DAY_MS).getUTCDay();
+            if (wd !== 0 && wd !== 6) k++;
+          }
+          d = bday;
+        }
+        if (d > d1) break;
+        times.push((d - valuationDay) / 365);
+      }
+    } else {
+      const step =
+        unit === 'D' || unit === 'B' ? n / 365 : unit === 'W' ? (7 * n) / 365 : unit === 'M' ? n / 12 : n;
+      for (let i = 1; times.length < maxDates; i++) {
+        const t = t0 + step * i;
+        if (t > t1 + 1e-12) break;
+        times.push(t);
+      }
+    }
+    if (times.length >= maxDates)
+      fail('E_SCHEDULE_TOO_LONG', field, `must have fewer than ${maxDates} dates`, s.every);
+    if (times.length === 0) fail('E_BAD_SCHEDULE', field, 'has no date between start and end', s.every);
+  }
+  for (let i = 1; i < times.length; i++)
+    if (!(times[i]! > times[i - 1]!))
+      fail('E_BAD_SCHEDULE', `${field}.dates[${i}]`, 'must be after the previous date', times[i]);
+  return times;
+}
