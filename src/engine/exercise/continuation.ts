@@ -1,0 +1,108 @@
+/**
+ * Evaluates a fitted continuation-value regression (one {@link DatePolicy}) on the paths of a sample, and the
+ * exercise decision that follows from it. Shared by the regression pass, the pricing pass and the dual pass, so all
+ * three apply the very same rule.
+ */
+import { evalTerm } from './basis.ts';
+import type { BasisSpec, DatePolicy, ExerciseHolder, ExerciseSample } from './types.ts';
+
+/**
+ * Standardised state of date `j` of a sample: `z[v][p] = (x − mean_v) / scale_v`; a variable with scale 0 gets an
+ * all-zero array (its terms are not active).
+ */
+export function standardState(
+  sample: ExerciseSample,
+  j: number,
+  mean: number[],
+  scale: number[],
+): Float64Array[] {
+  const { nPaths, nState, state } = sample;
+  const z: Float64Array[] = [];
+  for (let v = 0; v < nState; v++) {
+    const zv = new Float64Array(nPaths);
+    const s = scale[v]!;
+    if (s > 0) {
+      const m = mean[v]!;
+      const inv = 1 / s;
+      const off = (j * nState + v) * nPaths;
+      for (let p = 0; p < nPaths; p++) zv[p] = (state[off + p]! - m) * inv;
+    }
+    z.push(zv);
+  }
+  return z;
+}
+
+/** Exercise value at date j in time-t_j money (deflated value divided by the deflator), over all paths. */
+export function undeflatedExercise(sample: ExerciseSample, j: number): Float64Array {
+  const { nPaths } = sample;
+  const out = new Float64Array(nPaths);
+  const off = j * nPaths;
+  for (let p = 0; p < nPaths; p++) out[p] = sample.exerciseValue[off + p]! / sample.deflator[off + p]!;
+  return out;
+}
+
+/**
+ * Regressors of the active terms for date `j` (one Float64Array over all paths per active term).
+ * @param exercise exercise value in time-t_j money (needed when the basis includes it).
+ */
+export function designColumns(
+  basis: BasisSpec,
+  activeTerms: number[],
+  z: Float64Array[],
+  exercise: Float64Array,
+  exerciseMean: number,
+  exerciseScale: number,
+): Float64Array[] {
+  const nPaths = exercise.length;
+  return activeTerms.map((t) => {
+    const col = new Float64Array(nPaths);
+    if (t < basis.terms.length) evalTerm(basis.terms[t]!, z, col);
+    else {
+      const inv = exerciseScale > 0 ? 1 / exerciseScale : 0;
+      for (let p = 0; p < nPaths; p++) col[p] = (exercise[p]! - exerciseMean) * inv;
+    }
+    return col;
+  });
+}
+
+/** Fitted continuation value (time-t_j money) of every path at sample date `j` under `date`. */
+export function continuationValues(
+  basis: BasisSpec,
+  date: DatePolicy,
+  sample: ExerciseSample,
+  j: number,
+  exercise: Float64Array,
+): Float64Array {
+  const out = new Float64Array(sample.nPaths);
+  if (date.fit === 'none') return out;
+  const z = standardState(sample, j, date.mean, date.scale);
+  const cols = designColumns(basis, date.activeTerms, z, exercise, date.exerciseMean, date.exerciseScale);
+  cols.forEach((col, i) => {
+    const b = date.coefficients[i]!;
+    for (let p = 0; p < out.length; p++) out[p] = out[p]! + b * col[p]!;
+  });
+  return out;
+}
+
+/** Whether path p may exercise at date j (alive, and in the money when the holder's right is restricted). */
+export function isEligible(
+  sample: ExerciseSample,
+  j: number,
+  p: number,
+  holder: ExerciseHolder,
+  inTheMoneyOnly: boolean,
+): boolean {
+  const k = j * sample.nPaths + p;
+  if (sample.alive && sample.alive[k] === 0) return false;
+  if (holder === 'holder' && inTheMoneyOnly && !(sample.exerciseValue[k]! > 0)) return false;
+  return true;
+}
+
+/**
+ * The exercise rule: a holder exercises when the exercise value exceeds the estimated continuation value; an issuer
+ * exercises (calls) when paying the exercise value costs less than letting the deal continue (Longstaff & Schwartz
+ * 2001, Sec. 2; for an issuer's right the same rule with the objective reversed).
+ */
+export function decides(holder: ExerciseHolder, exercise: number, continuation: number): boolean {
+  return holder === 'holder' ? exercise > continuation : exercise < continuation;
+}
