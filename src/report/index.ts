@@ -1,0 +1,1 @@
+export { renderReport, CAUTION } from './renderReport.ts';

@@ -1,0 +1,495 @@
+/**
+ * The study report: one self-contained, printable HTML page (inline CSS and SVG, no scripts, no external assets)
+ * built from a saved study. The answer comes first, then the evidence, then what to reproduce and what it cannot
+ * tell you.
+ */
+import type { SavedStudy, FactorVerdict } from '../engine/study/types.ts';
+import { FACTOR_LABELS, type FactorId } from '../engine/study/rules.ts';
+import { esc, fmt, pct } from './format.ts';
+import { intervalChart, lineChart } from './svg.ts';
+
+/** The caution every report carries (also printed by the command line). */
+export const CAUTION =
+  'This report informs a pricing-model decision. It is not investment advice and does not replace the ' +
+  "firm's model validation: model choice remains subject to your model-risk policy and independent review.";
+
+const COLOURS: Record<string, string> = {
+  keep: '#0f766e',
+  drop: '#64748b',
+  undecided: '#b45309',
+  required: '#4338ca',
+  notNeeded: '#94a3b8',
+};
+const SERIES = ['#0f766e', '#b45309', '#4338ca', '#be123c', '#0369a1', '#4d7c0f', '#7c3aed', '#a16207'];
+
+const VERDICT_TEXT: Record<string, string> = {
+  keep: 'keep',
+  drop: 'drop',
+  undecided: 'undecided',
+  required: 'required',
+  notNeeded: 'not needed',
+};
+
+function badge(v: string): string {
+  return `<span class="badge" style="background:${COLOURS[v] ?? '#475569'}">${esc(VERDICT_TEXT[v] ?? v)}</span>`;
+}
+
+function table(head: string[], rows: string[][], cls = ''): string {
+  return `<table class="${cls}"><thead><tr>${head.map((h) => `<th>${h}</th>`).join('')}</tr></thead><tbody>${rows
+    .map((r) => `<tr>${r.map((c) => `<td>${c}</td>`).join('')}</tr>`)
+    .join('')}</tbody></table>`;
+}
+
+function label(f: string): string {
+  return FACTOR_LABELS[f as FactorId] ?? f;
+}
+
+function answerSentence(s: SavedStudy): string {
+  const by = (v: string) => s.verdicts.filter((x) => x.verdict === v).map((x) => label(x.factor));
+  const parts: string[] = [];
+  const req = by('required');
+  const keep = by('keep');
+  const drop = by('drop');
+  const und = by('undecided');
+  if (req.length) parts.push(`required by the payoff: ${req.join(', ')}`);
+  if (keep.length) parts.push(`material, keep: ${keep.join(', ')}`);
+  if (drop.length) parts.push(`immaterial, drop: ${drop.join(', ')}`);
+  if (und.length) parts.push(`not yet decided at this path count: ${und.join(', ')}`);
+  if (parts.length === 0) parts.push('no stochastic factor beyond the base model is indicated');
+  return parts.join('; ') + '.';
+}
+
+function verdictRow(s: SavedStudy, v: FactorVerdict): string[] {
+  const d = v.decision;
+  const z = d?.z ?? 0;
+  return [
+    esc(label(v.factor)),
+    esc(v.status === 'notNeeded' ? 'not needed' : v.status),
+    badge(v.verdict),
+    d ? fmt(d.delta) : '—',
+    d ? `${fmt(d.delta - z * d.se)} … ${fmt(d.delta + z * d.se)}` : '—',
+    d ? fmt(d.budget) : '—',
+    fmt(s.results.tau),
+    v.decidedAtLook === null
+      ? d
+        ? 'not decided'
+        : '—'
+      : fmt(s.results.looks[v.decidedAtLook]?.paths ?? 0, 8),
+    esc(v.reason),
+  ];
+}
+
+const CSS = `
+:root{--ink:#1e293b;--muted:#64748b;--line:#e2e8f0;--panel:#f8fafc;--accent:#0f766e}
+*{box-sizing:border-box}body{font:14px/1.5 system-ui,-apple-system,"Segoe UI",sans-serif;color:var(--ink);margin:0;background:#fff}
+main{max-width:980px;margin:0 auto;padding:28px 32px 64px}
+header.top{border-bottom:3px solid var(--accent);padding-bottom:12px;margin-bottom:18px}
+header.top h1{font-size:22px;margin:0 0 4px}header.top .meta{color:var(--muted);font-size:12.5px}
+h2{font-size:17px;margin:30px 0 8px;padding-top:8px;border-top:1px solid var(--line)}
+h3{font-size:14.5px;margin:18px 0 6px}
+.answer{background:var(--panel);border:1px solid var(--line);border-left:5px solid var(--accent);padding:14px 18px;border-radius:6px}
+.answer p.big{font-size:16px;margin:4px 0 10px}
+.caution{border:1px solid #fcd34d;background:#fffbeb;padding:10px 14px;border-radius:6px;font-size:13px;margin:14px 0}
+table{border-collapse:collapse;width:100%;margin:8px 0 12px;font-size:12.8px}
+th,td{border-bottom:1px solid var(--line);padding:5px 8px;text-align:left;vertical-align:top}
+th{background:var(--panel);font-weight:600}td.num,th.num{text-align:right;font-variant-numeric:tabular-nums}
+.badge{color:#fff;border-radius:10px;padding:1px 9px;font-size:12px;font-weight:600;white-space:nowrap}
+figure{margin:10px 0 16px}figure svg{width:100%;height:auto;max-width:680px;display:block}
+figcaption{color:var(--muted);font-size:12px}
+.plot-bg{fill:#fff;stroke:var(--line)}.grid{stroke:#eef2f7}.zone{fill:#e2e8f0;opacity:.6}
+.tick{font-size:10px;fill:var(--muted)}.axis{font-size:11px;fill:var(--ink)}.legend{font-size:11px}
+.muted{color:var(--muted)}code{background:var(--panel);padding:1px 4px;border-radius:3px;font-size:12px}
+ul.tight li{margin:2px 0}
+@media print{main{padding:0}h2{break-after:avoid}figure,table{break-inside:avoid}.answer{break-inside:avoid}}
+`;
+
+/** Renders the saved study as a self-contained HTML document. */
+export function renderReport(s: SavedStudy): string {
+  const deal = s.input.deal;
+  const mkt = s.input.markets[0]!;
+  const set = s.input.settings;
+  const ccy = deal.currency;
+  const sec: string[] = [];
+
+  // 1. The question and the answer
+  const joint = s.results.joint;
+  const jointText = !joint
+    ? ''
+    : joint.outcome === 'nothingDropped'
+      ? 'No factor was dropped, so the reduced model is the richest one.'
+      : `Joint check of the reduced model (without ${joint.dropped.map(label).join(', ')}) against the richest: ` +
+        `difference ${fmt(joint.difference)} ${esc(ccy)} ± ${fmt(joint.z * joint.se)} (z·SE), budget ${fmt(joint.budget)}: ` +
+        `<strong>${esc(joint.outcome)}</strong>.`;
+  sec.push(`<section class="answer"><h2 style="border:0;margin-top:0">Which stochastic factors does this deal need?</h2>
+<p class="big">${esc(answerSentence(s))}</p>
+<p>Recommended model: <strong>${esc(s.recommended.summary)}</strong>. ${jointText}</p>
+${table(
+  [
+    'Factor',
+    'Rules',
+    'Verdict',
+    `Δ (${esc(ccy)})`,
+    'Interval Δ ± z·SE',
+    'Budget b',
+    'Threshold τ',
+    'Decided at paths',
+    'Why',
+  ],
+  s.verdicts.map((v) => verdictRow(s, v)),
+)}
+<p class="muted">Δ = price of the richest variant minus the richest variant without the factor, on the same random numbers.
+Keep if |Δ| − z·SE − b &gt; τ; drop if |Δ| + z·SE + b &lt; τ; otherwise undecided. z controls the error rate (α = ${fmt(
+    set.alpha,
+  )}) over ${s.results.looks.length} looks and all factors (${esc(
+    set.spending === 'pocock' ? 'Pocock-type' : "O'Brien–Fleming-type",
+  )} alpha spending, Lan &amp; DeMets 1983; Holm 1979 across factors).</p></section>
+<div class="caution">${esc(CAUTION)}</div>`);
+
+  // 2. Deal
+  const a = s.analysis;
+  sec.push(`<h2>Deal</h2>${table(
+    ['Name', 'Notional', 'Currency', 'Last date (years)', 'Underlyings'],
+    [
+      [
+        esc(deal.name),
+        fmt(deal.notional, 10),
+        esc(ccy),
+        fmt(a.lastTime, 4),
+        esc(
+          Object.entries(deal.underlyings ?? {})
+            .map(([k, u]) => `${k} (${u.kind === 'equity' ? u.currency : `${u.units} per ${u.per}`})`)
+            .join(', '),
+        ),
+      ],
+    ],
+  )}
+${deal.description ? `<p>${esc(deal.description)}</p>` : ''}
+<h3>What the rules read in the payoff</h3><ul class="tight">${(a.reasons ?? []).map((r) => `<li>${esc(r)}</li>`).join('') || '<li>nothing beyond a plain payoff</li>'}</ul>
+${table(
+  ['Factor group', 'Rules', 'Reason'],
+  s.rules.factors.map((f) => [esc(label(f.factor)), badge(f.status), esc(f.reason)]),
+)}
+${s.rules.notes.length ? `<ul class="tight">${s.rules.notes.map((n) => `<li>${esc(n)}</li>`).join('')}</ul>` : ''}`);
+
+  // 3. Market
+  const eqRows = Object.entries(mkt.equities).map(([n, e]) => [
+    esc(n),
+    esc(e.currency),
+    fmt(e.spot),
+    pct(e.divYield),
+    `${e.vols.expiries.length} × ${(e.vols.moneyness ?? e.vols.strikes ?? []).length}`,
+  ]);
+  sec.push(`<h2>Market</h2><p>Snapshot ${esc(mkt.date)}${mkt.name ? ` — ${esc(mkt.name)}` : ''}; ${s.input.markets.length} snapshot(s) in the study.</p>
+${table(['Equity', 'Currency', 'Spot', 'Dividend yield', 'Vol grid (expiries × strikes)'], eqRows)}
+${table(
+  ['Curve', 'Pillars', 'Shortest zero', 'Longest zero'],
+  Object.entries(mkt.curves).map(([c, cv]) => [
+    esc(c),
+    String(cv.times.length),
+    cv.zeroRates ? pct(cv.zeroRates[0]!) : '—',
+    cv.zeroRates ? pct(cv.zeroRates[cv.zeroRates.length - 1]!) : '—',
+  ]),
+)}`);
+
+  // 4. Calibration fit
+  const fitRows = s.ladder.map((v) => [
+    esc(v.label),
+    esc(v.calibration.characteristicFunction),
+    fmt(v.calibration.rmseVol * 1e4, 3),
+    fmt(v.calibration.maxAbsVolError * 1e4, 3),
+    fmt(v.calibration.seconds, 3),
+    esc(
+      Object.entries(v.calibration.feller)
+        .map(([k, f]) => `${k}: ${fmt(f, 3)}${f < 1 ? ' (Feller fails)' : ''}`)
+        .join(', ') || '—',
+    ),
+  ]);
+  const fitPlots = s.ladder
+    .filter((v) => v.calibration.fit.length > 1)
+    .slice(0, 8)
+    .map((v) =>
+      lineChart({
+        title: `${v.label}: market and model vols per calibration instrument`,
+        xLabel: 'instrument number',
+        yLabel: 'vol',
+        series: [
+          {
+            name: 'market',
+            colour: SERIES[0]!,
+            points: v.calibration.fit.map((f, i) => ({ x: i + 1, y: f.marketVol })),
+          },
+          {
+            name: 'model',
+            colour: SERIES[1]!,
+            dashed: true,
+            points: v.calibration.fit.map((f, i) => ({ x: i + 1, y: f.modelVol })),
+          },
+        ],
+      }),
+    )
+    .join('');
+  const mcRows = s.ladder.flatMap((v) =>
+    v.calibration.fit
+      .filter((f) => f.mcError)
+      .map((f) => [
+        esc(v.label),
+        esc(f.instrument),
+        fmt(f.priceError),
+        fmt(f.mcError!.value),
+        fmt(f.mcError!.se),
+        Math.abs(f.mcError!.value) <= 3 * f.mcError!.se ? 'within 3 SE' : '<strong>outside 3 SE</strong>',
+      ]),
+  );
+  sec.push(`<h2>Calibration fit</h2>
+${table(['Variant', 'Characteristic function', 'RMSE (vol bp)', 'Max error (vol bp)', 'Time (s)', 'Feller ratio 2κθ/σ²'], fitRows)}
+${fitPlots}
+<h3>Evidence of fairness: each variant reprices its instruments on the study's paths</h3>
+${mcRows.length ? table(['Variant', 'Instrument', 'Analytic error', 'MC error', 'SE', 'Judgement'], mcRows) : '<p class="muted">No Monte Carlo repricing was stored.</p>'}`);
+
+  // 5. Ladder
+  sec.push(`<h2>Ladder</h2>${table(
+    ['Variant', 'Factors', `Price (${esc(ccy)})`, 'SE', 'Role'],
+    s.ladder.map((v, i) => {
+      const p = s.results.prices[i];
+      return [
+        esc(v.label),
+        esc(v.factors.map(label).join(' + ') || 'base'),
+        p ? fmt(p.value, 7) : '—',
+        p ? fmt(p.se, 3) : '—',
+        esc(v.role),
+      ];
+    }),
+  )}
+<p>Model-risk range over variants that fit the market: ${fmt(s.results.modelRisk.min, 7)} … ${fmt(
+    s.results.modelRisk.max,
+    7,
+  )} (spread ${fmt(s.results.modelRisk.spread)} ${esc(ccy)}, variants ${esc(s.results.modelRisk.variants.join(', '))}).</p>`);
+
+  // 6. Δ with intervals
+  const withD = s.verdicts.filter((v) => v.decision);
+  sec.push(`<h2>Factor impact with confidence intervals</h2>
+${intervalChart({
+  title: 'Δ per factor: point, ± z·SE (bar) against the immaterial zone |Δ| < τ (shaded)',
+  unit: `Δ (${ccy})`,
+  tau: s.results.tau,
+  rows: withD.map((v) => ({
+    label: v.factor,
+    value: v.decision!.delta,
+    lo: v.decision!.delta - v.decision!.z * v.decision!.se - v.decision!.budget,
+    hi: v.decision!.delta + v.decision!.z * v.decision!.se + v.decision!.budget,
+    colour: COLOURS[v.verdict] ?? '#475569',
+  })),
+})}
+${table(
+  ['Factor', 'Δ', 'SE', 'z', 'Budget b', 'of which step halving'],
+  withD.map((v) => [
+    esc(label(v.factor)),
+    fmt(v.decision!.delta),
+    fmt(v.decision!.se, 3),
+    fmt(v.decision!.z, 4),
+    fmt(v.decision!.budget, 3),
+    fmt(s.results.stepHalving[v.factor] ?? null, 3),
+  ]),
+)}`);
+
+  // 7. Attribution
+  if (s.results.shapley.length)
+    sec.push(`<h2>Attribution (exact Shapley values over the ladder)</h2>
+<p class="muted">Each factor's share of the richest-minus-base price change, averaged over every order of adding factors (Shapley 1953); the shares add up to the total. Standard errors from the full covariance of the paired variant prices.</p>
+${table(
+  ['Factor', `Share (${esc(ccy)})`, 'SE'],
+  s.results.shapley.map((x) => [esc(label(x.factor)), fmt(x.value), fmt(x.se, 3)]),
+)}`);
+
+  // 8. Local vol
+  if (s.results.localVol) {
+    const lv = s.results.localVol;
+    sec.push(`<h2>Local-volatility diagnostic</h2>
+<p>Stochastic-vol impact (Heston − Black–Scholes, deterministic rates) split into the part the smile explains (local vol − Black–Scholes) and the part only vol dynamics explain (Heston − local vol).</p>
+${table(
+  ['Part', `Value (${esc(ccy)})`, 'SE'],
+  [
+    ['smile (LV − BS)', fmt(lv.smile.value), fmt(lv.smile.se, 3)],
+    ['dynamics (Heston − LV)', fmt(lv.dynamics.value), fmt(lv.dynamics.se, 3)],
+    ['total (Heston − BS)', fmt(lv.total.value), fmt(lv.total.se, 3)],
+  ],
+)}`);
+  }
+
+  // 9. Hedge ratios
+  if (s.results.greeks) {
+    sec.push(`<h2>Hedge ratios</h2>
+<p class="muted">Central bumps on the same paths: delta by rescaling the equity paths by 1 ± ${fmt(
+      set.greeks?.spotBump ?? 0,
+    )} (sticky moneyness: under Heston and Black–Scholes the smile moves with spot), rho by a parallel shift of ± ${fmt(
+      (set.greeks?.rateBump ?? 0) * 1e4,
+    )} bp of the domestic curve, vega by ± ${fmt((set.greeks?.volBump ?? 0) * 100)} vol point(s) on the whole grid with each variant recalibrated from its fitted parameters. Delta per 1% spot, vega per vol point, rho per basis point.</p>
+${table(
+  ['Variant', 'Delta', 'SE', 'Vega', 'SE', 'Rho', 'SE'],
+  s.results.greeks.map((g) => [
+    esc(g.variant),
+    fmt(g.delta.value),
+    fmt(g.delta.se, 3),
+    fmt(g.vega?.value ?? null),
+    fmt(g.vega?.se ?? null, 3),
+    fmt(g.rho.value),
+    fmt(g.rho.se, 3),
+  ]),
+)}
+${table(
+  ['Hedge ratio', 'Factor', 'Δ', 'SE', 'Threshold', 'Verdict'],
+  s.results.greekVerdicts.map((g) => [
+    esc(g.greek),
+    esc(label(g.factor)),
+    fmt(g.decision.delta),
+    fmt(g.decision.se, 3),
+    fmt(g.threshold),
+    badge(g.decision.verdict),
+  ]),
+)}`);
+  }
+
+  // 10. Sweeps
+  if (s.results.sweeps.length) {
+    const plots = s.results.sweeps
+      .map((sw) =>
+        lineChart({
+          title: `${sw.pair}: richest variant's price across the plausible range [${sw.range[0]}, ${sw.range[1]}] (market value ${fmt(sw.base, 3)}); band ${fmt(sw.band)} ${ccy}`,
+          xLabel: 'correlation',
+          yLabel: `price (${ccy})`,
+          series: [
+            {
+              name: 'price ± 2 SE',
+              colour: SERIES[2]!,
+              points: sw.points.map((p) => ({
+                x: p.rho,
+                y: p.price.value,
+                lo: p.price.value - 2 * p.price.se,
+                hi: p.price.value + 2 * p.price.se,
+              })),
+            },
+          ],
+        }),
+      )
+      .join('');
+    sec.push(
+      `<h2>Unquoted correlations</h2>${table(
+        ['Pair', 'Range', 'Price band', 'Moves more than τ', 'Factors material somewhere'],
+        s.results.sweeps.map((sw) => [
+          esc(sw.pair),
+          `${fmt(sw.range[0], 3)} … ${fmt(sw.range[1], 3)}`,
+          fmt(sw.band),
+          sw.priceMovesMaterially ? '<strong>yes</strong>' : 'no',
+          esc(sw.materialSomewhere.map(label).join(', ') || '—'),
+        ]),
+      )}${plots}`,
+    );
+  }
+
+  // 11. Costs and stability
+  const cost = s.verdicts.map((v) => {
+    const withF = s.ladder.filter((x) => x.role === 'ladder' && x.factors.includes(v.factor));
+    const cal = withF.reduce((t, x) => t + x.calibration.seconds, 0);
+    const cf = Array.from(new Set(withF.map((x) => x.calibration.characteristicFunction))).join(', ');
+    const mc = withF.reduce((t, x) => t + (s.timings.perVariant[x.id] ?? 0), 0);
+    return [esc(label(v.factor)), fmt(cal, 3), esc(cf || '—'), fmt(mc, 3)];
+  });
+  sec.push(
+    `<h2>Cost of each factor</h2>${table(['Factor', 'Calibration time (s)', 'Characteristic function', 'Monte Carlo time (s)'], cost)}`,
+  );
+  if (s.results.stability.length) {
+    const params = Array.from(new Set(s.results.stability.flatMap((r) => Object.keys(r.params))));
+    const names = params.flatMap((p) =>
+      Object.keys(s.results.stability[0]!.params[p] ?? {}).map((k) => `${p}.${k}`),
+    );
+    sec.push(
+      `<h3>Parameter and verdict stability across snapshots</h3>${table(
+        ['Date', ...s.verdicts.map((v) => esc(v.factor)), ...names.map(esc)],
+        s.results.stability.map((r) => [
+          esc(r.date),
+          ...s.verdicts.map((v) => badge(r.verdicts[v.factor] ?? '—')),
+          ...names.map((n) => {
+            const [p, k] = n.split('.');
+            return fmt(r.params[p!]?.[k!] ?? null, 4);
+          }),
+        ]),
+      )}`,
+    );
+  }
+
+  // 12. Convergence
+  if (s.results.convergence.length) {
+    const factors = Object.keys(s.results.convergence[0]!.deltas);
+    const z = s.verdicts.find((v) => v.decision)?.decision?.z ?? 2;
+    sec.push(
+      `<h2>Convergence</h2>${lineChart({
+        title: `Δ per factor against paths at each look (band ± z·SE, z = ${fmt(z, 3)}); shaded: |Δ| < τ`,
+        xLabel: 'paths',
+        yLabel: `Δ (${ccy})`,
+        logX: true,
+        hBand: { lo: -s.results.tau, hi: s.results.tau, label: 'immaterial zone' },
+        series: factors.map((f, i) => ({
+          name: f,
+          colour: SERIES[i % SERIES.length]!,
+          points: s.results.convergence.map((c) => ({
+            x: c.paths,
+            y: c.deltas[f]!.value,
+            lo: c.deltas[f]!.value - z * c.deltas[f]!.se,
+            hi: c.deltas[f]!.value + z * c.deltas[f]!.se,
+          })),
+        })),
+      })}`,
+    );
+  }
+
+  // 13. Reproducibility
+  sec.push(`<h2>Reproducibility</h2>${table(
+    ['Item', 'Value'],
+    [
+      ['Tool', `${esc(s.tool.name)} ${esc(s.tool.version)}`],
+      ['Seed', esc(set.seed)],
+      [
+        'Paths (final), first look, batch',
+        `${fmt(set.paths, 10)}, ${fmt(set.firstPaths, 10)}, ${fmt(set.batchSize, 10)}`,
+      ],
+      ['Largest time step (years)', fmt(set.maxStep, 4)],
+      [
+        'Heston scheme',
+        esc(set.scheme === 'qe' ? 'QE with martingale correction (Andersen 2008)' : 'full-truncation Euler'),
+      ],
+      [
+        'Calibration',
+        esc(
+          set.calibration === 'fair'
+            ? 'fair: every variant refitted to the same instruments'
+            : 'naive: factors added without refitting',
+        ),
+      ],
+      ['Workers used', String(s.timings.workers)],
+      [
+        'Wall time (s): total / calibration / simulation / payoff',
+        `${fmt(s.timings.total, 3)} / ${fmt(s.timings.calibration, 3)} / ${fmt(s.timings.simulation, 3)} / ${fmt(s.timings.payoff, 3)}`,
+      ],
+      ['SHA-256 of the study file', `<code>${esc(s.hash)}</code>`],
+    ],
+  )}
+<p class="muted">Re-run with <code>factor-triage verify STUDY_FILE</code>: results are bit-identical for any number of workers. The hash detects edits made after saving; it does not prove who produced the file.</p>`);
+
+  // 14. Limitations
+  sec.push(
+    `<h2>Limitations</h2><ul class="tight">${[...s.limitations, ...s.warnings.map((w) => `warning: ${w}`)]
+      .map((l) => `<li>${esc(l)}</li>`)
+      .join('')}</ul><div class="caution">${esc(CAUTION)}</div>`,
+  );
+
+  return `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width,initial-scale=1">
+<title>Factor study — ${esc(deal.name)}</title><style>${CSS}</style></head><body><main>
+<header class="top"><h1>Factor study: ${esc(deal.name)}</h1><div class="meta">Market ${esc(mkt.date)} · ${fmt(
+    set.paths,
+    10,
+  )} paths · seed ${esc(set.seed)} · τ = ${fmt(s.results.tau)} ${esc(ccy)} · ${esc(s.tool.name)} ${esc(s.tool.version)} · hash ${esc(
+    s.hash.slice(0, 16),
+  )}…</div></header>
+${sec.join('\n')}
+</main></body></html>`;
+}
