@@ -3,37 +3,9 @@
  * their vegas, and implied-vol inversion. Prices are undiscounted unless a discount factor is passed.
  */
 
-/**
- * Standard normal cdf by Marsaglia's Taylor series (G. Marsaglia, "Evaluating the normal distribution",
- * J. Statistical Software 11(4), 2004, the `Phi` routine), absolute error ~1e-15.
- */
-export function normCdf(x: number): number {
-  if (x < -38) return 0;
-  if (x > 38) return 1;
-  if (x < -6) {
-    // Mills-ratio continued fraction keeps relative accuracy in the far left tail (Abramowitz & Stegun 26.2.14).
-    let f = 0;
-    for (let k = 60; k >= 1; k--) f = k / (-x + f);
-    return normPdf(x) / (-x + f);
-  }
-  let s = x;
-  let t = 0;
-  let b = x;
-  const q = x * x;
-  let i = 1;
-  while (s !== t) {
-    t = s;
-    i += 2;
-    b *= q / i;
-    s = t + b;
-  }
-  return 0.5 + s * Math.exp(-0.5 * q - 0.91893853320467274178);
-}
+import { normCdf, normPdf } from '../math/normal.ts';
 
-/** Standard normal density. */
-export function normPdf(x: number): number {
-  return Math.exp(-0.5 * x * x) * 0.3989422804014327;
-}
+export { normCdf, normPdf };
 
 /** Inputs of a vanilla on a forward. Times in years, vols as decimals (lognormal) or absolute (normal). */
 export interface ForwardOption {
