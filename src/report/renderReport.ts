@@ -172,7 +172,7 @@ ${table(
 ${s.rules.notes.length ? `<ul class="tight">${s.rules.notes.map((n) => `<li>${esc(n)}</li>`).join('')}</ul>` : ''}`);
 
   // 3. Market
-  const eqRows = Object.entries(mkt.equities).map(([n, e]) => [
+  const eqRows = Object.entries(mkt.equities ?? {}).map(([n, e]) => [
     esc(n),
     esc(e.currency),
     fmt(e.spot),
@@ -183,7 +183,7 @@ ${s.rules.notes.length ? `<ul class="tight">${s.rules.notes.map((n) => `<li>${es
 ${table(['Equity', 'Currency', 'Spot', 'Dividend yield', 'Vol grid (expiries × strikes)'], eqRows)}
 ${table(
   ['Curve', 'Pillars', 'Shortest zero', 'Longest zero'],
-  Object.entries(mkt.curves).map(([c, cv]) => [
+  Object.entries(mkt.curves ?? {}).map(([c, cv]) => [
     esc(c),
     String(cv.times.length),
     cv.zeroRates ? pct(cv.zeroRates[0]!) : '—',
