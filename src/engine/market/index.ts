@@ -2,3 +2,4 @@ export * from './types.ts';
 export * from './curve.ts';
 export * from './dates.ts';
 export * from './equity.ts';
+export * from './volSurface.ts';
