@@ -13,8 +13,9 @@ import type { HestonParams, HullWhiteParams } from '../../src/engine/simulation/
 import { cosCallPrices } from '../../src/engine/calibration/cosPricer.ts';
 import { hestonLogChf } from '../../src/engine/calibration/hestonCharFn.ts';
 import { blackImpliedVol, bachelierImpliedVol } from '../../src/engine/calibration/blackFormulas.ts';
-import { hwCaplet } from '../../src/engine/calibration/hullWhiteFormulas.ts';
-import { discountFunction } from '../../src/engine/calibration/discountCurve.ts';
+import { makeCurve, equityForward } from '../../src/engine/market/index.ts';
+import type { DiscountCurve } from '../../src/engine/market/index.ts';
+import { makeHullWhite } from '../../src/engine/models/index.ts';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 const PILLARS = [0.25, 0.5, 1, 2, 3, 5, 7, 10, 15, 20, 30];
@@ -49,9 +50,10 @@ function curve(ccy: string, long: number, slope: number, decay: number): CurveSp
   };
 }
 
-function equityQuote(e: EquityState, df: (t: number) => number): EquityQuote {
+function equityQuote(e: EquityState, curve: DiscountCurve): EquityQuote {
+  const df = (t: number) => curve.df(t);
   const vols = EXPIRIES.map((T) => {
-    const F = (e.spot * Math.exp(-e.q * T)) / df(T);
+    const F = equityForward({ spot: e.spot, divYield: e.q }, curve, T);
     const strikes = MONEYNESS.map((m) => m * e.spot);
     const prices = cosCallPrices({
       logChf: hestonLogChf(e.heston, T),
@@ -81,8 +83,10 @@ function equityQuote(e: EquityState, df: (t: number) => number): EquityQuote {
   };
 }
 
-function capletVols(hw: HullWhiteParams, df: (t: number) => number): RateVolSpec {
+function capletVols(hw: HullWhiteParams, curve: DiscountCurve): RateVolSpec {
   const tau = 1;
+  const df = (t: number) => curve.df(t);
+  const model = makeHullWhite(curve, hw);
   return {
     instrument: 'caplet',
     type: 'normal',
@@ -91,7 +95,7 @@ function capletVols(hw: HullWhiteParams, df: (t: number) => number): RateVolSpec
       const dfT = df(T);
       const dfS = df(T + tau);
       const F = (dfT / dfS - 1) / tau;
-      const price = hwCaplet({ hw, dfT, dfS, T, tau, strike: F });
+      const price = model.caplet({ type: 'cap', T1: T, T2: T + tau, strike: F, accrual: tau });
       const vn = bachelierImpliedVol({
         forward: F,
         strike: F,
@@ -109,8 +113,8 @@ function capletVols(hw: HullWhiteParams, df: (t: number) => number): RateVolSpec
 function snapshot(date: string, s: DayState): MarketSnapshot {
   const dom = curve('DOM', 0.035 + s.domLevel, 0.01, 8);
   const ash = curve('ASH', 0.022 + s.ashLevel, 0.01, 6);
-  const dfDom = discountFunction(dom);
-  const dfAsh = discountFunction(ash);
+  const dfDom = makeCurve(dom);
+  const dfAsh = makeCurve(ash);
   const eqs = s.eq;
   const names = [
     'eq:ALDR',

@@ -15,8 +15,7 @@
 import type { HestonParams, HullWhiteParams } from '../simulation/types.ts';
 import type { LogCharFn } from './cosPricer.ts';
 import { hestonLogChf } from './hestonCharFn.ts';
-import { hwB, hwSigmaAt } from './hullWhiteFormulas.ts';
-import { gaussLegendre } from '../math/quadrature.ts';
+import { hwB, hwSigmaAt, integratePieces } from './hullWhiteBondVol.ts';
 
 /** ln Γ(x) for x > 0 by the Lanczos approximation (g = 7, n = 9; C. Lanczos, SIAM J. Numer. Anal. B1, 1964). */
 export function logGamma(x: number): number {
@@ -75,26 +74,10 @@ export interface H1HwRates {
   rhoSR: number;
 }
 
-const RULE = gaussLegendre(24);
-
-/** ∫ over [0, T] split at the σ_r breakpoints, by 24-point Gauss–Legendre per piece. */
-function integrateRatePieces(hw: HullWhiteParams, T: number, f: (t: number) => number): number {
-  const cuts = [0, ...(hw.sigmaTimes ?? []).filter((x) => x > 0 && x < T), T];
-  let s = 0;
-  for (let i = 0; i + 1 < cuts.length; i++) {
-    const lo = cuts[i]!;
-    const hi = cuts[i + 1]!;
-    const h = 0.5 * (hi - lo);
-    const c = 0.5 * (hi + lo);
-    for (let k = 0; k < RULE.nodes.length; k++) s += RULE.weights[k]! * h * f(c + h * RULE.nodes[k]!);
-  }
-  return s;
-}
-
 /** Σ²(T) = ∫_0^T [b(t)² + 2ρ_Sr b(t) E√v(t)] dt, b(t) = σ_r(t)(1 − e^{−a(T−t)})/a. */
 export function h1hwExtraVariance(p: HestonParams, T: number, rates: H1HwRates): number {
   const { hw, rhoSR } = rates;
-  return integrateRatePieces(hw, T, (t) => {
+  return integratePieces(hw, 0, T, (t) => {
     const b = hwSigmaAt(hw, t) * hwB(hw.a, t, T);
     return b * b + 2 * rhoSR * b * (rhoSR === 0 ? 0 : expectedSqrtVariance(p, t));
   });

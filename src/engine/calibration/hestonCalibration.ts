@@ -5,7 +5,7 @@
  * report also gives exact implied-vol errors at the solution. Several starting points are run, the best kept,
  * and the spread of the others reported. The Feller ratio 2κθ/σ² is a reported diagnostic, not imposed.
  */
-import type { EquityQuote } from '../market/types.ts';
+import type { DiscountCurve, EquityQuote } from '../market/types.ts';
 import type { HestonParams } from '../simulation/types.ts';
 import { EngineError, issue, throwIfErrors, type FieldIssue } from '../errors.ts';
 import { cosCallPrices, type LogCharFn } from './cosPricer.ts';
@@ -47,8 +47,8 @@ export interface HestonCalibrationInput {
   /** Market name of the equity (for messages). */
   name: string;
   equity: EquityQuote;
-  /** Discount factors of the equity's currency. */
-  df: (t: number) => number;
+  /** Discount curve of the equity's currency. */
+  curve: DiscountCurve;
   /** Quotes to fit (default: the whole grid). */
   quotes?: VolQuote[];
   /** Weight per quote (default 1). */
@@ -179,8 +179,9 @@ export function defaultHestonStarts(quotes: VolQuote[]): HestonParams[] {
 export function calibrateHeston(input: HestonCalibrationInput): HestonCalibration {
   const t0 = now();
   const field = `equities.${input.name}`;
-  if (!input.quotes) throwIfErrors(gridArbitrageIssues(input.equity, input.df, field), 'E_STATIC_ARBITRAGE');
-  const quotes = input.quotes ?? gridQuotes(input.equity, input.df, field);
+  if (!input.quotes)
+    throwIfErrors(gridArbitrageIssues(input.equity, input.curve, field), 'E_STATIC_ARBITRAGE');
+  const quotes = input.quotes ?? gridQuotes(input.equity, input.curve, field);
   const fixed = input.fixed ?? {};
   const nFree = HESTON_NAMES.filter((n) => fixed[n] === undefined).length;
   checkQuotes(input, quotes, nFree);

@@ -5,7 +5,8 @@
  * moneyness: J. Gatheral, "The Volatility Surface", Wiley 2006, Ch. 2 and 3 (conditions on call prices and
  * calendar spreads); common practice).
  */
-import type { EquityQuote } from '../market/types.ts';
+import type { DiscountCurve, EquityQuote } from '../market/types.ts';
+import { equityForward as marketForward } from '../market/equity.ts';
 import { issue, type FieldIssue } from '../errors.ts';
 import { blackPrice, blackVega } from './blackFormulas.ts';
 
@@ -33,11 +34,9 @@ export interface VolQuote {
   field: string;
 }
 
-/** Forward F(0,T) = (S − PV of cash dividends paid up to T)·e^{−qT}/P(0,T) (common practice). */
-export function equityForward(eq: EquityQuote, df: (t: number) => number, T: number): number {
-  let pvDiv = 0;
-  for (const d of eq.dividends ?? []) if (d.t <= T) pvDiv += d.amount * df(d.t);
-  return ((eq.spot - pvDiv) * Math.exp(-eq.divYield * T)) / df(T);
+/** Forward F(0,T) of the equity on its curve (escrowed cash dividends and a yield: the market layer's convention). */
+export function equityForward(eq: EquityQuote, curve: DiscountCurve, T: number): number {
+  return marketForward(eq, curve, T);
 }
 
 /** Absolute strikes of the grid columns. */
@@ -48,12 +47,12 @@ export function gridStrikes(eq: EquityQuote): number[] {
 }
 
 /** All quotes of the grid (every row and column), in row-major order. */
-export function gridQuotes(eq: EquityQuote, df: (t: number) => number, field = 'equity'): VolQuote[] {
+export function gridQuotes(eq: EquityQuote, curve: DiscountCurve, field = 'equity'): VolQuote[] {
   const strikes = gridStrikes(eq);
   const out: VolQuote[] = [];
   eq.vols.expiries.forEach((T, i) => {
-    const F = equityForward(eq, df, T);
-    const D = df(T);
+    const F = equityForward(eq, curve, T);
+    const D = curve.df(T);
     strikes.forEach((K, j) => {
       const vol = eq.vols.vols[i]![j]!;
       const isCall = K >= F;
@@ -84,7 +83,7 @@ export function gridQuotes(eq: EquityQuote, df: (t: number) => number, field = '
  */
 export function gridArbitrageIssues(
   eq: EquityQuote,
-  df: (t: number) => number,
+  curve: DiscountCurve,
   field = 'equity',
   tol = 1e-7,
 ): FieldIssue[] {
@@ -132,7 +131,7 @@ export function gridArbitrageIssues(
       );
   if (issues.length) return issues;
   const T = g.expiries;
-  const fwd = T.map((t) => equityForward(eq, df, t));
+  const fwd = T.map((t) => equityForward(eq, curve, t));
   for (let i = 0; i < T.length; i++) {
     const F = fwd[i]!;
     const c = strikes.map((K, j) =>
@@ -199,11 +198,11 @@ export function gridArbitrageIssues(
  * Implied vol at any (T, K) from the grid: linear in ln(K/F) within a row (flat outside), linear in total
  * variance between rows at equal ln(K/F) (flat vol before the first and after the last row). Common practice.
  */
-export function gridVolAt(eq: EquityQuote, df: (t: number) => number, T: number, K: number): number {
+export function gridVolAt(eq: EquityQuote, curve: DiscountCurve, T: number, K: number): number {
   const g = eq.vols;
   const strikes = gridStrikes(eq);
   const rowVol = (i: number, k: number) => {
-    const F = equityForward(eq, df, g.expiries[i]!);
+    const F = equityForward(eq, curve, g.expiries[i]!);
     const ks = strikes.map((s) => Math.log(s / F));
     if (k <= ks[0]!) return g.vols[i]![0]!;
     if (k >= ks[ks.length - 1]!) return g.vols[i]![ks.length - 1]!;
@@ -212,7 +211,7 @@ export function gridVolAt(eq: EquityQuote, df: (t: number) => number, T: number,
     const w = (k - ks[m]!) / (ks[m + 1]! - ks[m]!);
     return (1 - w) * g.vols[i]![m]! + w * g.vols[i]![m + 1]!;
   };
-  const k = Math.log(K / equityForward(eq, df, T));
+  const k = Math.log(K / equityForward(eq, curve, T));
   const E = g.expiries;
   if (T <= E[0]!) return rowVol(0, k);
   if (T >= E[E.length - 1]!) return rowVol(E.length - 1, k);
