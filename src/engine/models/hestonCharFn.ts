@@ -1,0 +1,177 @@
+/**
+ * Heston (1993) characteristic function of X = ln(S_T / F_T) (log of the terminal spot over the forward), in the
+ * form of Albrecher, Mayer, Schoutens & Tistaert (2007), 'The little Heston trap', Wilmott Magazine, eq. (2) with
+ * g₂ = (ξ − d)/(ξ + d), which stays on the principal branch of the complex logarithm for all maturities:
+ *
+ *   ξ = κ − ρσiu,  d = √(ξ² + σ²(iu + u²)),  g₂ = (ξ − d)/(ξ + d),
+ *   D = (ξ − d)/σ² · (1 − e^{−dT})/(1 − g₂e^{−dT}),
+ *   C = κθ/σ² · [(ξ − d)T − 2 ln((1 − g₂e^{−dT})/(1 − g₂))],
+ *   φ(u) = exp(C + D v₀).
+ *
+ * Two algebraic rewrites keep σ → 0 accurate: (ξ − d)/σ² = −(iu + u²)/(ξ + d) (since ξ² − d² = −σ²(iu + u²)), and
+ * the logarithm is taken as log1p(w) with w = g₂(1 − e^{−dT})/(1 − g₂), by its series when |w| is small.
+ *
+ * Two versions: {@link hestonCharFn} on the immutable `Complex` type (readable reference, complex u allowed, used by
+ * the Lewis integral) and {@link hestonCharFnGrid} with inlined real/imaginary arithmetic for real u (COS inner loop).
+ * Tests check that both agree.
+ */
+import { Complex } from '../math/complex.ts';
+import type { HestonParams } from '../simulation/types.ts';
+
+/** C and D of the exponent, φ(u) = exp(C + D v₀). */
+export interface HestonExponent {
+  C: Complex;
+  D: Complex;
+}
+
+/** The exponent terms C(u, T) and D(u, T) for complex u (reference implementation on `Complex`). */
+export function hestonExponent(params: HestonParams, T: number, u: Complex): HestonExponent {
+  const { kappa, theta, sigma, rho } = params;
+  const iu = Complex.I.mul(u);
+  const xi = Complex.of(kappa).sub(iu.scale(rho * sigma));
+  const q = iu.add(u.mul(u)); // iu + u²
+  const d = xi
+    .mul(xi)
+    .add(q.scale(sigma * sigma))
+    .sqrt();
+  const xiPlusD = xi.add(d);
+  const xiMinusDOverS2 = q.neg().div(xiPlusD); // (ξ − d)/σ²
+  const g = xiMinusDOverS2.scale(sigma * sigma).div(xiPlusD); // g₂ = (ξ − d)/(ξ + d)
+  const e = d.scale(-T).exp();
+  const oneMinusE = Complex.ONE.sub(e);
+  const oneMinusGE = Complex.ONE.sub(g.mul(e));
+  const D = xiMinusDOverS2.mul(oneMinusE).div(oneMinusGE);
+  // ln((1 − g e)/(1 − g)) = log1p(w), w = g(1 − e)/(1 − g)
+  const w = g.mul(oneMinusE).div(Complex.ONE.sub(g));
+  const L =
+    w.abs() < 1e-5
+      ? w.sub(w.mul(w).scale(0.5)).add(
+          w
+            .mul(w)
+            .mul(w)
+            .scale(1 / 3),
+        )
+      : w.addReal(1).log();
+  // κθ/σ² [(ξ − d)T − 2L] = κθ[(ξ − d)/σ² T] − 2κθ/σ² L; the second term is O(1) as σ → 0 because L = O(σ²).
+  const C = xiMinusDOverS2.scale(kappa * theta * T).sub(L.scale((2 * kappa * theta) / (sigma * sigma)));
+  return { C, D };
+}
+
+/** φ(u) = E[exp(iu ln(S_T/F_T))] for complex u (reference implementation). */
+export function hestonCharFn(params: HestonParams, T: number, u: Complex): Complex {
+  const { C, D } = hestonExponent(params, T, u);
+  return C.add(D.scale(params.v0)).exp();
+}
+
+/**
+ * The exponent C + D v₀ and D on a grid of real u, inlined arithmetic (no allocation per point). Writes
+ * Re/Im of C + D v₀ into `eRe`, `eIm` and of D into `dRe`, `dIm` (each of length `u.length`).
+ */
+export function hestonExponentGrid(
+  params: HestonParams,
+  T: number,
+  u: ArrayLike<number>,
+  eRe: Float64Array,
+  eIm: Float64Array,
+  dRe?: Float64Array,
+  dIm?: Float64Array,
+): void {
+  const { v0, kappa, theta, sigma, rho } = params;
+  const s2 = sigma * sigma;
+  const kt = kappa * theta;
+  const twoKtOverS2 = (2 * kt) / s2;
+  for (let j = 0; j < u.length; j++) {
+    const uj = u[j]!;
+    // ξ = κ − iρσu
+    const xr = kappa;
+    const xiI = -rho * sigma * uj;
+    // q = iu + u²
+    const qr = uj * uj;
+    const qi = uj;
+    // d² = ξ² + σ² q
+    const d2r = xr * xr - xiI * xiI + s2 * qr;
+    const d2i = 2 * xr * xiI + s2 * qi;
+    // principal sqrt
+    const mod = Math.hypot(d2r, d2i);
+    let dr = Math.sqrt(0.5 * (mod + d2r));
+    let di = Math.sqrt(Math.max(0, 0.5 * (mod - d2r)));
+    if (d2i < 0) di = -di;
+    if (dr === 0 && di === 0) {
+      dr = 0;
+      di = 0;
+    }
+    // p = ξ + d
+    const pr = xr + dr;
+    const pi = xiI + di;
+    const pden = pr * pr + pi * pi;
+    // m = (ξ − d)/σ² = −q/p
+    const mr = -(qr * pr + qi * pi) / pden;
+    const mi = -(qi * pr - qr * pi) / pden;
+    // g = m σ² / p
+    const gnr = mr * s2;
+    const gni = mi * s2;
+    const gr = (gnr * pr + gni * pi) / pden;
+    const gi = (gni * pr - gnr * pi) / pden;
+    // e = exp(−dT)
+    const ex = Math.exp(-dr * T);
+    const er = ex * Math.cos(-di * T);
+    const ei = ex * Math.sin(-di * T);
+    // 1 − e, 1 − g e
+    const ome_r = 1 - er;
+    const ome_i = -ei;
+    const omge_r = 1 - (gr * er - gi * ei);
+    const omge_i = -(gr * ei + gi * er);
+    // D = m (1 − e)/(1 − g e)
+    const nr = mr * ome_r - mi * ome_i;
+    const ni = mr * ome_i + mi * ome_r;
+    const den = omge_r * omge_r + omge_i * omge_i;
+    const Dr = (nr * omge_r + ni * omge_i) / den;
+    const Di = (ni * omge_r - nr * omge_i) / den;
+    // w = g (1 − e)/(1 − g)
+    const wnr = gr * ome_r - gi * ome_i;
+    const wni = gr * ome_i + gi * ome_r;
+    const omgr = 1 - gr;
+    const omgi = -gi;
+    const wden = omgr * omgr + omgi * omgi;
+    const wr = (wnr * omgr + wni * omgi) / wden;
+    const wi = (wni * omgr - wnr * omgi) / wden;
+    let Lr: number;
+    let Li: number;
+    if (Math.hypot(wr, wi) < 1e-5) {
+      const w2r = wr * wr - wi * wi;
+      const w2i = 2 * wr * wi;
+      const w3r = w2r * wr - w2i * wi;
+      const w3i = w2r * wi + w2i * wr;
+      Lr = wr - 0.5 * w2r + w3r / 3;
+      Li = wi - 0.5 * w2i + w3i / 3;
+    } else {
+      Lr = Math.log(Math.hypot(1 + wr, wi));
+      Li = Math.atan2(wi, 1 + wr);
+    }
+    const Cr = kt * T * mr - twoKtOverS2 * Lr;
+    const Ci = kt * T * mi - twoKtOverS2 * Li;
+    eRe[j] = Cr + v0 * Dr;
+    eIm[j] = Ci + v0 * Di;
+    if (dRe && dIm) {
+      dRe[j] = Dr;
+      dIm[j] = Di;
+    }
+  }
+}
+
+/** φ(u) on a grid of real u, inlined arithmetic: writes Re φ and Im φ into `re`, `im`. */
+export function hestonCharFnGrid(
+  params: HestonParams,
+  T: number,
+  u: ArrayLike<number>,
+  re: Float64Array,
+  im: Float64Array,
+): void {
+  hestonExponentGrid(params, T, u, re, im);
+  for (let j = 0; j < u.length; j++) {
+    const m = Math.exp(re[j]!);
+    const a = im[j]!;
+    re[j] = m * Math.cos(a);
+    im[j] = m * Math.sin(a);
+  }
+}
