@@ -115,7 +115,9 @@ describe('makeVolSurface', () => {
     expect(volGridIssues({ ...grid, strikes: [1, 2, 3, 4, 5] }, 'g')[0]!.message).toContain(
       'exactly one of strikes',
     );
-    expect(() => makeVolSurface(grid, spot, fwd).vol(0, 100)).toThrowError(/T = 0, K = 100; both must be finite and > 0/);
+    expect(() => makeVolSurface(grid, spot, fwd).vol(0, 100)).toThrowError(
+      /T = 0, K = 100; both must be finite and > 0/,
+    );
   });
 });
 
