@@ -19,6 +19,11 @@ import type { CompiledDeal, CompiledPayment, LevelSource, Program, ProgramNode }
 export interface DealEvaluatorOptions {
   /** Path name of an equity when it differs from its market name (keyed by the deal's equity id). */
   equityNames?: Record<string, string>;
+  /**
+   * Batch FX key of a pair written `PER/UNITS` (units of UNITS per one PER), when the paths name it differently;
+   * default: the key `PER/UNITS` itself.
+   */
+  fxNames?: Record<string, string>;
   /** Largest gap (years) between a deal date and the nearest grid time; default half a day (0.5/365). */
   gridTolerance?: number;
 }
@@ -350,11 +355,13 @@ export function makeDealRunner(compiled: CompiledDeal, opts: DealEvaluatorOption
       return k;
     };
     const fxCache = new Map<string, Float64Array>();
+    const fxSeries = (per: string, units: string): Float64Array | undefined =>
+      batch.fx[opts.fxNames?.[`${per}/${units}`] ?? `${per}/${units}`];
     const domesticValue = (ccy: string): ((k: number, p: number) => number) => {
       if (ccy === dom) return () => 1;
-      const direct = batch.fx[`${ccy}/${dom}`];
+      const direct = fxSeries(ccy, dom);
       if (direct) return (k, p) => direct[k * n + p]!;
-      const inv = batch.fx[`${dom}/${ccy}`];
+      const inv = fxSeries(dom, ccy);
       if (inv) return (k, p) => 1 / inv[k * n + p]!;
       return fail(
         'E_PATH_MISSING',
@@ -368,7 +375,7 @@ export function makeDealRunner(compiled: CompiledDeal, opts: DealEvaluatorOption
       const hit = fxCache.get(key);
       if (hit) return hit;
       let out: Float64Array;
-      const direct = batch.fx[`${per}/${units}`];
+      const direct = fxSeries(per, units);
       if (direct) out = direct.subarray(k * n, (k + 1) * n);
       else {
         // units per `per` = (dom per `per`) / (dom per `units`): triangulation through the numeraire currency.
