@@ -1,6 +1,6 @@
 'use strict';
 /**
- * Electron main process: one locked-down window serving the built renderer (dist/web) from the
+ * Electron main process: one locked-down window serving the built renderer (dist/desktop) from the
  * app:// scheme, a native menu, and the file/PDF services behind the preload bridge. All logic
  * worth testing lives in app/lib/*.cjs; this file only wires it to Electron.
  */
@@ -12,7 +12,7 @@ const { CHANNELS, MENU_CHANNEL, validateSender } = require('./lib/ipc.cjs');
 const { createShellHandlers } = require('./lib/shellHandlers.cjs');
 const recent = require('./lib/recentFiles.cjs');
 
-const RENDERER_ROOT = path.join(__dirname, '..', 'dist', 'web');
+const RENDERER_ROOT = path.join(__dirname, '..', 'dist', 'desktop');
 
 protocol.registerSchemesAsPrivileged([
   { scheme: sec.APP_SCHEME, privileges: { standard: true, secure: true, supportFetchAPI: true } },

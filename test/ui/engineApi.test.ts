@@ -161,7 +161,7 @@ describe('engine methods through the protocol', () => {
     });
     expect(r.valid).toBe(false);
     expect(r.minEigenvalue).toBeLessThan(0);
-    expect(r.issues[0]!.code).toBe('E_NOT_PSD');
+    expect(r.issues.map((i) => i.code)).toContain('E_NOT_PSD');
     const n = r.nearest!.matrix;
     const want = [
       [1, 0.7607, 0.1573],
@@ -223,5 +223,36 @@ describe('engine methods through the protocol', () => {
     expect(isApiError(e) && e.code).toBe('E_STUDY_JSON');
     const e2 = await rejection(client.call('study.open', { text: '{"format":"something-else"}' }));
     expect(isApiError(e2) && e2.code).toBe('E_STUDY_FORMAT');
+  });
+});
+
+describe('deal and market checks through the protocol', () => {
+  it('a market snapshot with a negative spot is refused with the field named', async () => {
+    const { client } = pair(engineHandlers);
+    const snapshot = {
+      schema: 'factor-triage/market@1',
+      date: '2026-11-23',
+      domestic: 'DOM',
+      curves: { DOM: { currency: 'DOM', times: [1, 2], zeroRates: [0.02, 0.025] } },
+      equities: {
+        ALDR: {
+          currency: 'DOM',
+          spot: -5,
+          divYield: 0,
+          vols: { expiries: [1], moneyness: [1], vols: [[0.2]] },
+        },
+      },
+      correlation: { names: ['eq:ALDR'], matrix: [[1]] },
+    };
+    const r = await client.call('market.check', { snapshot });
+    expect(r.valid).toBe(false);
+    expect(r.issues.some((i) => i.field.includes('equities.ALDR.spot'))).toBe(true);
+  });
+  it('a deal that is not an object comes back as issues, not an exception', async () => {
+    const { client } = pair(engineHandlers);
+    const r = await client.call('deal.check', { deal: 42 });
+    expect(r.issues.length).toBeGreaterThan(0);
+    expect(r.compiled).toBeUndefined();
+    expect(r.analysis).toBeNull();
   });
 });

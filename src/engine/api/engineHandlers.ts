@@ -5,11 +5,18 @@
 import { EngineError, issue, type FieldIssue } from '../errors.ts';
 import { checkDeal } from '../deal/compileDeal.ts';
 import { checkExpression } from '../deal/checkExpression.ts';
-import { minEigenvalue, nearestCorrelation, notPsdIssue, isPsd } from '../math/linalg.ts';
+import { analyseDeal } from '../deal/analyseDeal.ts';
+import type { DealAnalysis } from '../deal/types.ts';
+import { minEigenvalue, nearestCorrelation } from '../math/linalg.ts';
+import { correlationIssues } from '../market/correlation.ts';
+import { parseSnapshot } from '../market/snapshot.ts';
 import { parseStudyFile, checkStudyHash } from '../study/savedStudy.ts';
+import { diffStudies } from '../study/diff.ts';
 import {
   PROTOCOL_VERSION,
   type CorrelationCheck,
+  type DealReview,
+  type MarketCheck,
   type EngineHandlers,
   type EngineMethod,
   type OpenedStudy,
@@ -19,59 +26,44 @@ import {
 export const MAX_STUDY_TEXT = 64 * 1024 * 1024;
 
 function correlationCheck(names: string[], matrix: number[][]): CorrelationCheck {
-  const issues: FieldIssue[] = [];
-  const n = names.length;
-  if (
-    !Array.isArray(matrix) ||
-    matrix.length !== n ||
-    matrix.some((r) => !Array.isArray(r) || r.length !== n)
-  ) {
-    issues.push(
-      issue(
-        'E_CORRELATION_SHAPE',
-        'correlation.matrix',
-        `must be ${n} × ${n} (one row and column per driver)`,
-        matrix,
-      ),
-    );
-    return { valid: false, minEigenvalue: NaN, issues, nearest: null };
+  const issues = correlationIssues({ names, matrix }, 'correlation');
+  const psd = issues.find((i) => i.code === 'E_NOT_PSD');
+  const shapeOk = !issues.some((i) => i.severity === 'error' && i.code !== 'E_NOT_PSD');
+  const minEig = shapeOk ? minEigenvalue(matrix) : NaN;
+  let nearest: CorrelationCheck['nearest'] = null;
+  if (psd) {
+    const near = nearestCorrelation(matrix);
+    nearest = { matrix: near.matrix, distance: near.distance, converged: near.converged };
   }
-  for (let i = 0; i < n; i++)
-    for (let j = 0; j < n; j++) {
-      const v = matrix[i]![j]!;
-      const field = `correlation.matrix[${i}][${j}]`;
-      if (!(typeof v === 'number' && Number.isFinite(v)))
-        issues.push(
-          issue('E_NOT_FINITE', field, 'must be a finite number', v, `${names[i]} with ${names[j]}`),
-        );
-      else if (i === j && v !== 1)
-        issues.push(issue('E_CORRELATION_DIAGONAL', field, 'must be 1 (a driver with itself)', v));
-      else if (v < -1 || v > 1)
-        issues.push(issue('E_CORRELATION_RANGE', field, 'must be a correlation in [-1, 1]', v));
-      else if (j > i && matrix[j]![i] !== v)
-        issues.push(
-          issue(
-            'E_CORRELATION_SYMMETRY',
-            field,
-            `must equal correlation.matrix[${j}][${i}] (${String(matrix[j]![i])})`,
-            v,
-            'the matrix must be symmetric',
-          ),
-        );
-    }
-  if (issues.length > 0) return { valid: false, minEigenvalue: NaN, issues, nearest: null };
-  const minEig = minEigenvalue(matrix);
-  if (isPsd(matrix)) return { valid: true, minEigenvalue: minEig, issues, nearest: null };
-  const near = nearestCorrelation(matrix);
-  issues.push(
-    notPsdIssue('correlation.matrix', minEig, near.matrix, 'the nearest correlation matrix (Higham 2002)'),
-  );
+  return { valid: !issues.some((i) => i.severity === 'error'), minEigenvalue: minEig, issues, nearest };
+}
+
+function marketCheck(snapshot: unknown): MarketCheck {
+  try {
+    const { warnings } = parseSnapshot(snapshot);
+    return { valid: true, issues: warnings };
+  } catch (e) {
+    if (e instanceof EngineError) return { valid: false, issues: e.issues.length ? e.issues : [issueOf(e)] };
+    throw e;
+  }
+}
+
+function issueOf(e: EngineError): FieldIssue {
   return {
-    valid: false,
-    minEigenvalue: minEig,
-    issues,
-    nearest: { matrix: near.matrix, distance: near.distance, converged: near.converged },
+    code: e.code,
+    field: 'market',
+    rule: e.message,
+    value: null,
+    message: e.message,
+    severity: 'error',
   };
+}
+
+function dealCheck(deal: unknown): DealReview {
+  const check = checkDeal(deal);
+  let analysis: DealAnalysis | null = null;
+  if (check.compiled) analysis = analyseDeal(check.compiled);
+  return { ...check, analysis };
 }
 
 function openStudy(text: string): OpenedStudy {
@@ -89,17 +81,23 @@ function openStudy(text: string): OpenedStudy {
   return { study, hash: checkStudyHash(study) };
 }
 
-/** Every method this build serves. */
-export const engineHandlers: EngineHandlers = {
+/**
+ * Every method the engine serves by itself. `report.render` is added by the app's worker (the engine does not
+ * depend on src/report); `study.run` and `study.verify` are served once the study runner is part of the build.
+ */
+export const engineHandlers: Omit<EngineHandlers, 'report.render' | 'study.run' | 'study.verify'> &
+  Partial<EngineHandlers> = {
   'engine.info': () => ({
     protocol: PROTOCOL_VERSION,
     methods: Object.keys(engineHandlers) as EngineMethod[],
   }),
-  'deal.check': ({ deal }) => checkDeal(deal),
+  'deal.check': ({ deal }) => dealCheck(deal),
+  'market.check': ({ snapshot }) => marketCheck(snapshot),
   'deal.checkExpression': ({ text, context }) => {
     const r = checkExpression(text, context);
     return { errors: r.errors };
   },
   'market.checkCorrelation': ({ names, matrix }) => correlationCheck(names, matrix),
   'study.open': ({ text }) => openStudy(text),
+  'study.diff': ({ a, b }) => diffStudies(a, b),
 };

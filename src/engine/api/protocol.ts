@@ -6,8 +6,10 @@
  */
 import type { FieldIssue } from '../errors.ts';
 import type { DealCheck } from '../deal/compileDeal.ts';
+import type { DealAnalysis } from '../deal/types.ts';
 import type { CheckResult, ExpressionContext } from '../deal/checkExpression.ts';
-import type { SavedStudy } from '../study/types.ts';
+import type { SavedStudy, StudyInput } from '../study/types.ts';
+import type { StudyDiff } from '../study/diff.ts';
 
 /** Version of the message format; a client and a server of different versions refuse each other. */
 export const PROTOCOL_VERSION = 1;
@@ -24,10 +26,34 @@ export interface CorrelationCheck {
   nearest: { matrix: number[][]; distance: number; converged: boolean } | null;
 }
 
+/** A deal checked, compiled when valid, and analysed for the rules. */
+export interface DealReview extends DealCheck {
+  /** What the study's rules read in the deal; null while the deal has errors. */
+  analysis: DealAnalysis | null;
+}
+
+/** A market snapshot checked: every error and warning, by field. */
+export interface MarketCheck {
+  valid: boolean;
+  issues: FieldIssue[];
+}
+
 /** A study file read back: the parsed study and whether its hash still matches its content. */
 export interface OpenedStudy {
   study: SavedStudy;
   hash: { ok: boolean; stored: string; computed: string };
+}
+
+/** Outcome of re-running a saved study. */
+export interface VerifyOutcome {
+  /** The re-run reproduced every result bit for bit (timings excepted) and the hash matched. */
+  identical: boolean;
+  /** The stored hash matches the file's content (false: the file was edited after saving). */
+  hashOk: boolean;
+  /** The first field that differs, with both values; null when identical. */
+  difference: { field: string; saved: unknown; rerun: unknown } | null;
+  /** One sentence for people. */
+  message: string;
 }
 
 /**
@@ -38,13 +64,23 @@ export interface EngineMethods {
   /** Protocol version and the methods this engine build serves. */
   'engine.info': { args: Record<string, never>; result: { protocol: number; methods: EngineMethod[] } };
   /** Checks a whole deal file (raw JSON value); every problem names its field, expression errors carry positions. */
-  'deal.check': { args: { deal: unknown }; result: DealCheck };
+  'deal.check': { args: { deal: unknown }; result: DealReview };
+  /** Checks a whole market snapshot (raw JSON value): schema and meaning, errors and warnings by field. */
+  'market.check': { args: { snapshot: unknown }; result: MarketCheck };
   /** Checks one payoff expression against the names the deal declares (check-as-you-type). */
   'deal.checkExpression': { args: { text: string; context: ExpressionContext }; result: CheckResult };
   /** Checks a correlation matrix and offers the nearest valid one when it is not positive semi-definite. */
   'market.checkCorrelation': { args: { names: string[]; matrix: number[][] }; result: CorrelationCheck };
   /** Parses a study file's text: schema check (refused with the reason) and the hash check. */
   'study.open': { args: { text: string }; result: OpenedStudy };
+  /** Runs a study (long: progress, cancellable). */
+  'study.run': { args: { input: StudyInput }; result: SavedStudy };
+  /** Re-runs a saved study and compares it bit for bit (long: progress, cancellable). */
+  'study.verify': { args: { study: SavedStudy }; result: VerifyOutcome };
+  /** What changed between two studies: inputs, settings, verdicts, results. */
+  'study.diff': { args: { a: SavedStudy; b: SavedStudy }; result: StudyDiff };
+  /** The self-contained HTML report of a saved study (served by the app's worker, which may use src/report). */
+  'report.render': { args: { study: SavedStudy }; result: { html: string } };
 }
 
 export type EngineMethod = keyof EngineMethods;

@@ -1,0 +1,2 @@
+export * from './platform.ts';
+export * from './desktopBridge.ts';
