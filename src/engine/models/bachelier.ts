@@ -4,8 +4,8 @@
  * P. Jäckel, 'Implied normal volatility', Wilmott, 2017, Sec. 1), with d = (F − K)/(σ_N√T):
  *   call = A[(F − K)Φ(d) + σ_N√T φ(d)],   put = A[(K − F)Φ(−d) + σ_N√T φ(d)],
  * A = annuity or discount factor. Implied normal vol: Newton steps on the out-of-the-money time value
- * v(s) = s[φ(d) + dΦ(d)], d = −|F − K|/s, s = σ_N√T (∂v/∂s = φ(d)), in the log form ln v when v is tiny, inside a
- * shrinking bracket.
+ * v(s) = s[φ(d) + dΦ(d)], d = −|F − K|/s, s = σ_N√T (∂v/∂s = φ(d)), in the log form ln v (well scaled from
+ * 1e-300 up), inside a shrinking bracket, growing at most tenfold per step before an upper bound is found.
  */
 import { fail, requireFinite, requireNonNegative, requirePositive } from '../errors.ts';
 import { normCdf, normPdf } from '../math/normal.ts';
@@ -76,13 +76,12 @@ export function bachelierImpliedVol(p: Omit<BachelierInput, 'vol'> & { price: nu
   let lo = 0;
   let hi = Infinity;
   let s = Math.max(v * Math.sqrt(2 * Math.PI), 1e-300);
-  const useLog = v < 1e-3 * Math.abs(x);
-  const target = useLog ? Math.log(v) : v;
+  const target = Math.log(v);
   for (let it = 0; it < 100; it++) {
     const val = otmValue(x, s);
     const vega = normPdf(x / s);
-    const f = useLog ? Math.log(val) - target : val - target;
-    const df = useLog ? vega / val : vega;
+    const f = Math.log(val) - target;
+    const df = vega / val;
     if (f < 0) lo = Math.max(lo, s);
     else hi = Math.min(hi, s);
     let next = s - f / df;
