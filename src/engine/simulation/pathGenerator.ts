@@ -38,7 +38,7 @@ import type { TimeGrid } from './timeGrid.ts';
 import type { DriverLayout } from './drivers.ts';
 import { orderDrivers, variantDriverNames } from './drivers.ts';
 import { choleskyLower, variantCorrelation } from './correlationFactor.ts';
-import { curveFromSpec } from './curveFromSpec.ts';
+import { makeCurve as marketCurve } from '../market/curve.ts';
 import { hwB, hwIntegrals, hwStepFactor, makeHullWhiteTerms, type HullWhiteTerms } from './hullWhiteTerms.ts';
 import { makeGridLocalVol, type LocalVolFunction } from './localVol.ts';
 
@@ -49,7 +49,7 @@ export const QE_PSI_C = 1.5;
 export interface PrepareOptions {
   /** Replaces the grid local vol of the named equities (in-process use; functions cannot cross workers). */
   localVol?: Record<string, LocalVolFunction>;
-  /** Builds the discount curve of a currency; default {@link curveFromSpec}. */
+  /** Builds the discount curve of a currency; default the market layer's makeCurve. */
   makeCurve?: (spec: VariantSpec['rates'][string]['curve'], field: string) => DiscountCurve;
 }
 
@@ -187,7 +187,7 @@ export function prepareVariant(
     );
   const times = grid.times;
   const nSteps = times.length - 1;
-  const makeCurve = options.makeCurve ?? curveFromSpec;
+  const makeCurve = options.makeCurve ?? marketCurve;
 
   const drivers = orderDrivers(variantDriverNames(v), layout);
   const corr = variantCorrelation(v, drivers);
