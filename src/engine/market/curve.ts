@@ -140,21 +140,27 @@ export function makeCurve(spec: CurveSpec, field = 'curve'): DiscountCurve {
     }
     return lo;
   }
-  /** y(t) and y'(t). */
-  function evalY(t: number): [number, number] {
-    if (t <= x[0]!) return [z1 * t, z1];
-    if (t >= tn) return [y[n - 1]! + fEnd * (t - tn), fEnd];
+  /** y(t) = −ln P(0,t). */
+  function yOf(t: number): number {
+    if (t <= x[0]!) return z1 * t;
+    if (t >= tn) return y[n - 1]! + fEnd * (t - tn);
     const i = segment(t);
     const h = x[i + 1]! - x[i]!;
     const A = (x[i + 1]! - t) / h;
     const B = (t - x[i]!) / h;
-    const mi = m[i]!;
-    const mj = m[i + 1]!;
-    const val = A * y[i]! + B * y[i + 1]! + (((A * A * A - A) * mi + (B * B * B - B) * mj) * h * h) / 6;
-    const der = (y[i + 1]! - y[i]!) / h + (((1 - 3 * A * A) * mi + (3 * B * B - 1) * mj) * h) / 6;
-    return [val, der];
+    return A * y[i]! + B * y[i + 1]! + (((A * A * A - A) * m[i]! + (B * B * B - B) * m[i + 1]!) * h * h) / 6;
   }
-  return curveFromLogDiscount(spec.currency, field, evalY);
+  /** y'(t) = f(0,t). */
+  function dyOf(t: number): number {
+    if (t <= x[0]!) return z1;
+    if (t >= tn) return fEnd;
+    const i = segment(t);
+    const h = x[i + 1]! - x[i]!;
+    const A = (x[i + 1]! - t) / h;
+    const B = (t - x[i]!) / h;
+    return (y[i + 1]! - y[i]!) / h + (((1 - 3 * A * A) * m[i]! + (3 * B * B - 1) * m[i + 1]!) * h) / 6;
+  }
+  return curveFromLogDiscount(spec.currency, field, yOf, dyOf);
 }
 
 function checkTime(field: string, t: number): void {
@@ -170,29 +176,29 @@ function checkTime(field: string, t: number): void {
 function curveFromLogDiscount(
   currency: string,
   field: string,
-  evalY: (t: number) => [number, number],
+  yOf: (t: number) => number,
+  dyOf: (t: number) => number,
 ): DiscountCurve {
-  const df = (t: number): number => {
-    checkTime(field, t);
-    return t === 0 ? 1 : Math.exp(-evalY(t)[0]);
-  };
   return {
     currency,
-    df,
+    df(t: number): number {
+      checkTime(field, t);
+      return t === 0 ? 1 : Math.exp(-yOf(t));
+    },
     zero(t: number): number {
       checkTime(field, t);
-      return t === 0 ? evalY(0)[1] : evalY(t)[0] / t;
+      return t === 0 ? dyOf(0) : yOf(t) / t;
     },
     instFwd(t: number): number {
       checkTime(field, t);
-      return evalY(t)[1];
+      return dyOf(t);
     },
     fwd(t1: number, t2: number): number {
       checkTime(field, t1);
       checkTime(field, t2);
-      if (t2 === t1) return evalY(t1)[1];
+      if (t2 === t1) return dyOf(t1);
       // Simply compounded forward: (P(t1)/P(t2) − 1)/(t2 − t1), via expm1 for accuracy on short periods.
-      return Math.expm1(evalY(t2)[0] - evalY(t1)[0]) / (t2 - t1);
+      return Math.expm1(yOf(t2) - yOf(t1)) / (t2 - t1);
     },
   };
 }
@@ -203,7 +209,12 @@ export function flatCurve(currency: string, rate: number, field = 'curve'): Disc
     throw new EngineError('E_NOT_FINITE', `${field}.rate must be a finite number (got ${rate})`, [
       issue('E_NOT_FINITE', `${field}.rate`, 'must be a finite number', rate),
     ]);
-  return curveFromLogDiscount(currency, field, (t) => [rate * t, rate]);
+  return curveFromLogDiscount(
+    currency,
+    field,
+    (t) => rate * t,
+    () => rate,
+  );
 }
 
 /** Parallel shift of zero rates by `delta` (decimal, e.g. 0.0001 = 1 bp): P'(0,t) = P(0,t)·e^{−δt}, f' = f + δ. */
@@ -212,8 +223,10 @@ export function shiftedCurve(curve: DiscountCurve, delta: number): DiscountCurve
     throw new EngineError('E_NOT_FINITE', `shift must be a finite number (got ${delta})`, [
       issue('E_NOT_FINITE', 'shift', 'must be a finite number', delta),
     ]);
-  return curveFromLogDiscount(curve.currency, 'curve', (t) => [
-    t === 0 ? 0 : -Math.log(curve.df(t)) + delta * t,
-    curve.instFwd(t) + delta,
-  ]);
+  return curveFromLogDiscount(
+    curve.currency,
+    'curve',
+    (t) => (t === 0 ? 0 : -Math.log(curve.df(t)) + delta * t),
+    (t) => curve.instFwd(t) + delta,
+  );
 }

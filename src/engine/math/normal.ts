@@ -49,48 +49,50 @@ function gaussFactor(y: number): number {
   return Math.exp(-0.5 * ys * ys) * Math.exp(-0.5 * del);
 }
 
+/** Cody (1993) first interval: Φ(x) − 1/2 for |x| ≤ 0.66291. */
+function centralPart(x: number): number {
+  const xsq = Math.abs(x) > EPS_HALF ? x * x : 0;
+  let num = A[4]! * xsq;
+  let den = xsq;
+  for (let i = 0; i < 3; i++) {
+    num = (num + A[i]!) * xsq;
+    den = (den + B[i]!) * xsq;
+  }
+  return (x * (num + A[3]!)) / (den + B[3]!);
+}
+
+/** Cody (1993) second and third intervals: P[Z > y] for y > 0.66291. */
+function upperTail(y: number): number {
+  if (y <= SQRT_32) {
+    // Same recurrence as Cody's loop, unrolled: num/den are degree-8 polynomials in y.
+    const num =
+      (((((((C[8]! * y + C[0]!) * y + C[1]!) * y + C[2]!) * y + C[3]!) * y + C[4]!) * y + C[5]!) * y +
+        C[6]!) *
+        y +
+      C[7]!;
+    const den =
+      (((((((y + D[0]!) * y + D[1]!) * y + D[2]!) * y + D[3]!) * y + D[4]!) * y + D[5]!) * y + D[6]!) * y +
+      D[7]!;
+    return (num / den) * gaussFactor(y);
+  }
+  if (y === Infinity) return 0;
+  const xsq = 1 / (y * y);
+  let num = P[5]! * xsq;
+  let den = xsq;
+  for (let i = 0; i < 4; i++) {
+    num = (num + P[i]!) * xsq;
+    den = (den + Q[i]!) * xsq;
+  }
+  const r = (xsq * (num + P[4]!)) / (den + Q[4]!);
+  return ((SQRT_2PI_INV - r) / y) * gaussFactor(y);
+}
+
 /**
  * Both tails of the standard normal: `lower` = Φ(x) = P[Z ≤ x], `upper` = 1 − Φ(x) = P[Z > x], each to full
  * relative accuracy (Cody 1993, ANORM). NaN in gives NaN out.
  */
 export function normCdfBoth(x: number): { lower: number; upper: number } {
-  if (Number.isNaN(x)) return { lower: NaN, upper: NaN };
-  const y = Math.abs(x);
-  if (y <= THRESHOLD) {
-    const xsq = y > EPS_HALF ? x * x : 0;
-    let num = A[4]! * xsq;
-    let den = xsq;
-    for (let i = 0; i < 3; i++) {
-      num = (num + A[i]!) * xsq;
-      den = (den + B[i]!) * xsq;
-    }
-    const r = (x * (num + A[3]!)) / (den + B[3]!);
-    return { lower: 0.5 + r, upper: 0.5 - r };
-  }
-  let tail: number;
-  if (y <= SQRT_32) {
-    let num = C[8]! * y;
-    let den = y;
-    for (let i = 0; i < 7; i++) {
-      num = (num + C[i]!) * y;
-      den = (den + D[i]!) * y;
-    }
-    tail = ((num + C[7]!) / (den + D[7]!)) * gaussFactor(y);
-  } else if (y === Infinity) {
-    tail = 0;
-  } else {
-    const xsq = 1 / (x * x);
-    let num = P[5]! * xsq;
-    let den = xsq;
-    for (let i = 0; i < 4; i++) {
-      num = (num + P[i]!) * xsq;
-      den = (den + Q[i]!) * xsq;
-    }
-    const r = (xsq * (num + P[4]!)) / (den + Q[4]!);
-    tail = ((SQRT_2PI_INV - r) / y) * gaussFactor(y);
-  }
-  // tail = P[Z > |x|]
-  return x > 0 ? { lower: 1 - tail, upper: tail } : { lower: tail, upper: 1 - tail };
+  return { lower: normCdf(x), upper: normCdfUpper(x) };
 }
 
 /** Standard normal density φ(x) = exp(−x²/2)/√(2π) (dimensionless), accurate in the far tail. */
@@ -101,12 +103,20 @@ export function normPdf(x: number): number {
 
 /** Standard normal distribution function Φ(x) = P[Z ≤ x], relative error of a few ulp for all x. */
 export function normCdf(x: number): number {
-  return normCdfBoth(x).lower;
+  if (Number.isNaN(x)) return NaN;
+  const y = Math.abs(x);
+  if (y <= THRESHOLD) return 0.5 + centralPart(x);
+  const t = upperTail(y);
+  return x > 0 ? 1 - t : t;
 }
 
 /** Upper tail 1 − Φ(x) = Φ(−x), computed without cancellation. */
 export function normCdfUpper(x: number): number {
-  return normCdfBoth(x).upper;
+  if (Number.isNaN(x)) return NaN;
+  const y = Math.abs(x);
+  if (y <= THRESHOLD) return 0.5 - centralPart(x);
+  const t = upperTail(y);
+  return x > 0 ? t : 1 - t;
 }
 
 /** Wichura (1988) AS 241, PPND16: the quantile before refinement. */
@@ -203,9 +213,8 @@ export function normInv(p: number): number {
   let x = ppnd16(p);
   const dens = normPdf(x);
   if (dens > 0 && Number.isFinite(x)) {
-    const both = normCdfBoth(x);
     // Residual Φ(x) − p, formed on the small tail: for p > 1/2, (1 − p) is exact (Sterbenz) and Φ(x) − p = (1 − p) − Q(x).
-    const e = p < 0.5 ? both.lower - p : 1 - p - both.upper;
+    const e = p < 0.5 ? normCdf(x) - p : 1 - p - normCdfUpper(x);
     const u = e / dens;
     x = x - u / (1 + 0.5 * x * u);
   }
