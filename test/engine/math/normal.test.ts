@@ -1,5 +1,6 @@
 import { describe, it, expect } from 'vitest';
-import { normCdf, normCdfUpper, normInv, normPdf } from '../../../src/engine/math/normal.ts';
+import { normCdf, normCdfBoth, normCdfUpper, normInv, normPdf } from '../../../src/engine/math/normal.ts';
+import { integrateAdaptive } from '../../../src/engine/math/quadrature.ts';
 
 const EPS = 2.220446049250313e-16;
 
@@ -56,6 +57,17 @@ describe('normCdf', () => {
     }
     // grid x = 3 (0.25) 38: worst relative difference found about 1e-15
     expect(worst).toBeLessThan(1e-14);
+  });
+
+  // Second method in the project: Φ(x) = 1/2 + ∫_0^x φ(t) dt by adaptive Gauss–Kronrod.
+  it('agrees with the integral of the density to 1e-15 absolute on [−6, 6]', () => {
+    let worst = 0;
+    for (let x = -6; x <= 6; x += 0.3) {
+      const q = 0.5 + integrateAdaptive(normPdf, 0, x, { absTol: 1e-17, relTol: 1e-16 });
+      worst = Math.max(worst, Math.abs(q - normCdf(x)));
+    }
+    expect(worst).toBeLessThan(1e-15);
+    expect(normCdfBoth(1.3)).toEqual({ lower: normCdf(1.3), upper: normCdfUpper(1.3) });
   });
 
   it('is symmetric: Φ(x) + Φ(−x) = 1 and upper(x) = Φ(−x) exactly', () => {

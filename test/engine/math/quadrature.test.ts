@@ -52,6 +52,30 @@ describe('gaussLegendre', () => {
     }
   });
 
+  it('stays accurate for large n: n = 400 weights sum to 2 and ∫_{-1}^{1} cos(20x) dx = sin(20)/10', () => {
+    const { nodes, weights } = gaussLegendre(400);
+    near(
+      'sum w n=400',
+      weights.reduce((s, w) => s + w, 0),
+      2,
+      1e-12,
+    );
+    for (let i = 1; i < 400; i++) expect(nodes[i]!).toBeGreaterThan(nodes[i - 1]!);
+    near(
+      'cos(20x)',
+      integrateGL((x) => Math.cos(20 * x), -1, 1, 400),
+      Math.sin(20) / 10,
+      1e-13,
+    );
+    // Second method: the adaptive Gauss–Kronrod result for the same integral.
+    near(
+      'GL vs GK',
+      integrateGL((x) => Math.cos(20 * x), -1, 1, 60),
+      integrateAdaptive((x) => Math.cos(20 * x), -1, 1),
+      1e-13,
+    );
+  });
+
   it('returns copies, so a caller cannot change another caller’s rule', () => {
     const a = gaussLegendre(7);
     a.nodes[0] = 42;
