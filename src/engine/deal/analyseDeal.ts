@@ -208,6 +208,10 @@ export function analyseDeal(deal: CompiledDeal): DealAnalysis {
       const readsRateState = p.nodes.some((n) => n.op === 'state' && rs.has(n.name));
       if (r.rate === 0 && !readsRateState) continue;
       if (role === 'when') nonLinear.push(`${p.field} is a condition on a ${c} rate (a digital)`);
+      else if (role === 'set' && r.rate === 2)
+        nonLinear.push(
+          `${p.field} stores a non-linear function of a ${c} rate (condition, cap or floor) in state`,
+        );
       else if (role === 'set') mismatch.push(`${p.field} stores a ${c} rate in state, paid at a later date`);
       else if (role === 'exercise') nonLinear.push(`${p.field}: exercise cash depends on a ${c} rate`);
       else if (readsRateState) mismatch.push(`${p.field} pays a ${c} rate observed on earlier dates`);

@@ -98,7 +98,8 @@ export const LANGUAGE_FUNCTIONS = {
   short_rate: { args: ['rateCurrency'], help: 'short_rate(C): short rate of currency C now' },
   fixing: {
     args: ['rateCurrency', 'const'],
-    help: 'fixing(C, tau): simple rate over [t - tau, t], fixed at t - tau (paid now: its natural date)',
+    optional: 1,
+    help: 'fixing(C, tau): simple rate over [t - tau, t], fixed at t - tau (paid now: its natural date); fixing(C): over the period since the previous date of the schedule',
   },
   term_rate: {
     args: ['rateCurrency', 'const'],

@@ -214,6 +214,10 @@ function lower(L: Lowering, tree: CheckedExpr, field: string, text: string, time
       case 'short_rate':
         return push({ op: 'shortRate', currency: e.names[0]! });
       case 'fixing': {
+        if (e.args.length === 0) {
+          // the period since the previous schedule date: every fixing date is a schedule date or 0
+          return push({ op: 'fixing', currency: e.names[0]!, tau: null });
+        }
         const tau = c(0);
         if (!(tau > 0 && tau <= 50)) bad('fixing(C, tau) needs 0 < tau <= 50 years', tau);
         for (const t of times) {

@@ -136,9 +136,10 @@ function nodeFn(node: ProgramNode, names: Map<string, string>): NodeFn {
     case 'fixing':
       // Simple (money-market) rate set at t−τ for [t−τ, t]: L = (1/P(t−τ, t) − 1)/τ, Brigo & Mercurio (2006) eq. (1.11).
       return (env, _v, out) => {
-        const k0 = env.stepOf(Math.max(0, env.t - node.tau), `fixing date ${env.t - node.tau}`);
+        const tau = node.tau ?? env.dt;
+        const k0 = env.stepOf(Math.max(0, env.t - tau), `fixing date ${env.t - tau}`);
         env.batch.bond(node.currency, k0, env.t, out);
-        for (let p = 0; p < env.n; p++) out[p] = (1 / out[p]! - 1) / node.tau;
+        for (let p = 0; p < env.n; p++) out[p] = (1 / out[p]! - 1) / tau;
         return out;
       };
     case 'termRate':

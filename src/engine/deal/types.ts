@@ -127,8 +127,11 @@ export type ProgramNode =
   /** Running minimum / maximum / average; `slot` indexes `CompiledDeal.running`. */
   | { op: 'running'; slot: number }
   | { op: 'shortRate'; currency: string }
-  /** Simple rate over [t − tau, t] fixed at t − tau: 1/P(t−τ, t) − 1, over τ. */
-  | { op: 'fixing'; currency: string; tau: number }
+  /**
+   * Simple rate over [t − τ, t] fixed at t − τ: (1/P(t−τ, t) − 1)/τ. `tau` null: τ is the event's accrual `dt`
+   * (the period since the schedule's previous date).
+   */
+  | { op: 'fixing'; currency: string; tau: number | null }
   /** Simple rate over [t, t + tau] fixed at t. */
   | { op: 'termRate'; currency: string; tau: number }
   /** Par swap rate at t for `years` with `perYear` fixed payments. */
