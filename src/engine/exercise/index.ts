@@ -8,3 +8,4 @@ export * from './source.ts';
 export * from './dualBound.ts';
 export * from './priceExerciseRight.ts';
 export * from './sources/lognormalBermudan.ts';
+export * from './sources/hullWhiteBermudanSwaption.ts';
