@@ -195,7 +195,7 @@ export function rollBack(tree: HullWhiteTree, i: number, next: Float64Array): Fl
 /** Price at time 0 of the zero-coupon bond paying 1 at tree date T, by backward induction. */
 export function treeZeroBond(tree: HullWhiteTree, T: number): number {
   const iT = treeIndex(tree, T, 'zeroBond.T');
-  let v = new Float64Array(2 * tree.width[iT]! + 1).fill(1);
+  let v: Float64Array = new Float64Array(2 * tree.width[iT]! + 1).fill(1);
   for (let i = iT - 1; i >= 0; i--) v = rollBack(tree, i, v);
   return v[0]!;
 }
@@ -244,8 +244,8 @@ export function treeBermudanSwaption(tree: HullWhiteTree, spec: TreeSwaptionSpec
   const payIdx = spec.payTimes.map((t, i) => treeIndex(tree, t, `swaption.payTimes[${i}]`));
   const exIdx = new Set(spec.exerciseTimes.map((t, i) => treeIndex(tree, t, `swaption.exerciseTimes[${i}]`)));
   const last = payIdx[m - 1]!;
-  let bond = new Float64Array(2 * tree.width[last]! + 1);
-  let option = new Float64Array(bond.length);
+  let bond: Float64Array = new Float64Array(2 * tree.width[last]! + 1);
+  let option: Float64Array = new Float64Array(bond.length);
   for (let i = last; i >= 0; i--) {
     if (i < last) {
       bond = rollBack(tree, i, bond);
