@@ -15,7 +15,7 @@ import {
   type RunSpec,
 } from './runSpec.ts';
 import { makeTimeGrid, type TimeGrid } from './timeGrid.ts';
-import { makeDriverLayout, type DriverLayout } from './drivers.ts';
+import { driverWidth, makeDriverLayout, type DriverLayout } from './drivers.ts';
 import {
   modelBreakTimes,
   prepareVariant,
@@ -42,6 +42,7 @@ export interface BatchContext {
 export interface BatchResult {
   index: number;
   paths: number;
+  /** Sums over samples: paths, or antithetic pairs (then `sums.count` = paths / 2). */
   sums: MomentSums;
   /** Outputs per (variant, scenario), for the column layout. */
   outputs: number;
@@ -92,15 +93,24 @@ export function makeBatchContext(
   };
 }
 
-/** Draws batch `index`'s normals: layout [step][slot][path], from the stream of (seed, index). */
+/**
+ * Draws batch `index`'s normals, layout [step][slot][path]. Each driver has its own stream, seeded by
+ * `batchSeed(seed, index) + ':' + driverName`, filled step by step (all of a driver's slots per step), so a
+ * variant's normals depend only on (seed, batch, its drivers): adding another variant to a run changes nothing for
+ * the others.
+ */
 export function batchNormals(ctx: BatchContext, index: number, n: number): Float64Array {
   const nSteps = ctx.grid.times.length - 1;
   const w = ctx.layout.width;
   const out = new Float64Array(nSteps * w * n);
-  const src = makeNormalSource(makeUniformStream(batchSeed(ctx.spec.seed, index)), {
-    antithetic: ctx.spec.antithetic === true,
+  const seed = batchSeed(ctx.spec.seed, index);
+  const anti = ctx.spec.antithetic === true;
+  ctx.layout.names.forEach((name, d) => {
+    const src = makeNormalSource(makeUniformStream(`${seed}:${name}`), { antithetic: anti });
+    const s0 = ctx.layout.slot[d]!;
+    const width = driverWidth(name);
+    for (let k = 0; k < nSteps; k++) for (let s = s0; s < s0 + width; s++) src.fill(out, (k * w + s) * n, n);
   });
-  for (let k = 0; k < nSteps; k++) for (let s = 0; s < w; s++) src.fill(out, (k * w + s) * n, n);
   return out;
 }
 
@@ -127,5 +137,15 @@ export function simulateBatch(ctx: BatchContext, index: number): BatchResult {
       }
     }
   });
+  if (ctx.spec.antithetic) {
+    // Antithetic pairs are one sample each: accumulate the pair means so standard errors count pairs, not paths.
+    const h = n / 2;
+    const pairs = cols.map((c) => {
+      const out = new Float64Array(h);
+      for (let p = 0; p < h; p++) out[p] = 0.5 * (c[p]! + c[p + h]!);
+      return out;
+    });
+    return { index, paths: n, sums: batchSums(pairs, h), outputs: ctx.outputs, warnings: [...ctx.warnings] };
+  }
   return { index, paths: n, sums: batchSums(cols, n), outputs: ctx.outputs, warnings: [...ctx.warnings] };
 }

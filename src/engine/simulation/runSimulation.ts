@@ -5,7 +5,7 @@
  */
 import type { FieldIssue } from '../errors.ts';
 import { EngineError } from '../errors.ts';
-import { batchCount, type ColumnLabel, type RunSpec } from './runSpec.ts';
+import { batchCount, validateRunSpec, type ColumnLabel, type RunSpec } from './runSpec.ts';
 import { columnStats, controlVariate, emptySums, mergeSums, type MomentSums } from './momentSums.ts';
 import { makeBatchContext, simulateBatch, type BatchContext, type BatchResult } from './batch.ts';
 import { loadPayoffFactory } from './payoffFactories.ts';
@@ -42,6 +42,7 @@ export interface RunResult {
   sums: MomentSums;
   columns: ColumnLabel[];
   shape: { variants: number; scenarios: number; outputs: number };
+  /** Paths simulated (with antithetic pairs, twice the sample count `sums.count`). */
   paths: number;
   batches: number;
   /** True when cancelled before the path budget or target was reached. */
@@ -59,6 +60,7 @@ export async function runSimulation(
   executor: BatchExecutor,
   options: RunOptions = {},
 ): Promise<RunResult> {
+  validateRunSpec(spec);
   const t0 = performance.now();
   const total = batchCount(spec);
   const signal = options.signal;
@@ -67,6 +69,7 @@ export async function runSimulation(
   let failure: unknown;
   let next = 0;
   let merged = 0;
+  let pathsDone = 0;
   let sums: MomentSums | undefined;
   let outputs = 0;
   let warnings: FieldIssue[] = [];
@@ -118,6 +121,7 @@ export async function runSimulation(
           warnings = r.warnings;
         }
         sums = mergeSums(sums, r.sums);
+        pathsDone += r.paths;
         merged++;
         const se = maxSe();
         options.onProgress?.({
@@ -163,7 +167,7 @@ export async function runSimulation(
     sums: finalSums,
     columns,
     shape: { variants: spec.variants.length, scenarios, outputs },
-    paths: finalSums.count,
+    paths: pathsDone,
     batches: merged,
     partial: stopReason === 'cancelled',
     stopReason,

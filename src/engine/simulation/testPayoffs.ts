@@ -13,6 +13,8 @@ export type TestPayoff =
   | { kind: 'call' | 'put'; equity: string; strike: number; expiry: number }
   /** Domestic zero-coupon bond paying `notional` (default 1) at `maturity`; with `observe`, valued as 1/B(t)·P(t,T). */
   | { kind: 'zcb'; maturity: number; observe?: number; notional?: number }
+  /** Option at `expiry` on the domestic zero-coupon bond maturing at `maturity`: N (±(P(T,S) − K))⁺. */
+  | { kind: 'zbo'; type: 'call' | 'put'; expiry: number; maturity: number; strike: number; notional?: number }
   /** Domestic caplet: pays N τ (L − K)⁺ at `payment`, L the simple rate fixed at `fixing`; τ = payment − fixing. */
   | { kind: 'caplet'; fixing: number; payment: number; strike: number; notional?: number }
   /** S(T) paid at T in domestic units (for a foreign equity, the quanto forward times P_d(0,T)). */
@@ -40,13 +42,15 @@ function timesOf(p: TestPayoff): number[] {
       return p.observe !== undefined ? [p.observe] : [p.maturity];
     case 'caplet':
       return [p.fixing];
+    case 'zbo':
+      return [p.expiry];
     case 'discountedAsset':
       return [p.time];
     default:
       return fail(
         'E_PAYOFF_KIND',
         'payoff.description.kind',
-        'must be call, put, zcb, caplet, quantoForward, discountedAsset or fxForward',
+        'must be call, put, zcb, zbo, caplet, quantoForward, discountedAsset or fxForward',
         (p as { kind: unknown }).kind,
       );
   }
@@ -87,6 +91,22 @@ function evaluator(p: TestPayoff, i: number, ctx: EvaluatorContext): PathEvaluat
         b.bond(dom, k, p.maturity, out);
         const o = k * n;
         for (let q = 0; q < n; q++) out[q] = notional * out[q]! * b.discount[o + q]!;
+        return out;
+      };
+    }
+    case 'zbo': {
+      const k = ctx.indexOf(p.expiry, `${f}.expiry`);
+      const sign = p.type === 'call' ? 1 : -1;
+      const notional = p.notional ?? 1;
+      return (b) => {
+        const n = b.nPaths;
+        const out = new Float64Array(n);
+        b.bond(dom, k, p.maturity, out);
+        const o = k * n;
+        for (let q = 0; q < n; q++) {
+          const x = sign * (out[q]! - p.strike);
+          out[q] = x > 0 ? notional * x * b.discount[o + q]! : 0;
+        }
         return out;
       };
     }
