@@ -6,8 +6,7 @@
  *   (n+1)P_{n+1} = (2n+1)xP_n − nP_{n−1}, weights w_i = 2 / ((1 − x_i²) P_n'(x_i)²)
  *   (Abramowitz & Stegun 1964, eqs. 22.7.10 and 25.4.29; Press et al., Numerical Recipes, 3rd ed. 2007, §4.6).
  * - Gauss–Kronrod 7–15 pair and its error estimate: R. Piessens, E. de Doncker-Kapenga, C. Überhuber, D. Kahaner,
- *   QUADPACK (Springer 1983), routine QK15 and the globally adaptive strategy of QAG; the error estimate used is
- *   the plain |K15 − G7| (no QUADPACK scaling), which is conservative for smooth integrands.
+ *   QUADPACK (Springer 1983), routine QK15 (error estimate of §2.2.2) and the globally adaptive strategy of QAG.
  * - Semi-infinite range [a, ∞): x = a + t/(1 − t), dx = dt/(1 − t)², t in [0, 1) (QUADPACK QAGI uses the same
  *   kind of map); whole line by splitting at 0.
  */
@@ -131,8 +130,13 @@ interface Segment {
   b: number;
   value: number;
   error: number;
+  /** Rounding floor 50·eps·∫|f| of the estimate (QUADPACK QK15). */
+  roundoff: number;
   depth: number;
 }
+
+const EPMACH = 2.220446049250313e-16;
+const UFLOW = 2.2250738585072014e-308;
 
 function gk15(f: (x: number) => number, a: number, b: number, depth: number): Segment {
   const c = 0.5 * (a + b);
@@ -140,13 +144,31 @@ function gk15(f: (x: number) => number, a: number, b: number, depth: number): Se
   const fc = f(c);
   let k = fc * WGK[7]!;
   let g = fc * WG[3]!;
+  let kAbs = Math.abs(k);
+  const fl: number[] = [];
+  const fr: number[] = [];
   for (let j = 0; j < 7; j++) {
     const dx = h * XGK[j]!;
-    const s = f(c - dx) + f(c + dx);
-    k += WGK[j]! * s;
-    if (j % 2 === 1) g += WG[(j - 1) / 2]! * s;
+    const f1 = f(c - dx);
+    const f2 = f(c + dx);
+    fl.push(f1);
+    fr.push(f2);
+    k += WGK[j]! * (f1 + f2);
+    kAbs += WGK[j]! * (Math.abs(f1) + Math.abs(f2));
+    if (j % 2 === 1) g += WG[(j - 1) / 2]! * (f1 + f2);
   }
-  return { a, b, value: k * h, error: Math.abs((k - g) * h), depth };
+  // QUADPACK QK15 error estimate: |K15 − G7| scaled by the integrand's variation resasc = ∫|f − mean|,
+  // err = resasc · min(1, (200 |K15 − G7| / resasc)^{3/2}), floored at 50·eps·∫|f| (Piessens et al. 1983, §2.2.2).
+  const mean = 0.5 * k;
+  let asc = WGK[7]! * Math.abs(fc - mean);
+  for (let j = 0; j < 7; j++) asc += WGK[j]! * (Math.abs(fl[j]! - mean) + Math.abs(fr[j]! - mean));
+  const ah = Math.abs(h);
+  const resabs = kAbs * ah;
+  const resasc = asc * ah;
+  let err = Math.abs((k - g) * h);
+  if (resasc !== 0 && err !== 0) err = resasc * Math.min(1, Math.pow((200 * err) / resasc, 1.5));
+  if (resabs > UFLOW / (50 * EPMACH)) err = Math.max(50 * EPMACH * resabs, err);
+  return { a, b, value: k * h, error: err, roundoff: 50 * EPMACH * resabs, depth };
 }
 
 /** Options of {@link integrateAdaptive}. */
@@ -164,7 +186,7 @@ export interface AdaptiveOptions {
 /** Result of an adaptive integration with its error estimate. */
 export interface AdaptiveResult {
   value: number;
-  /** Estimated absolute error (sum of |K15 − G7| over the sub-intervals). */
+  /** Estimated absolute error (sum of the QK15 estimates over the sub-intervals). */
   error: number;
   /** Number of integrand evaluations. */
   evaluations: number;
@@ -173,7 +195,8 @@ export interface AdaptiveResult {
 
 /**
  * Globally adaptive Gauss–Kronrod 7–15 (QUADPACK QAG strategy): bisect the sub-interval with the largest error
- * until the total error is ≤ max(absTol, relTol·|I|). Returns the estimate and whether it converged.
+ * until the total error is ≤ max(absTol, relTol·|I|, rounding floor 50·eps·∫|f|). Returns the estimate and whether
+ * it converged.
  */
 export function integrateAdaptiveReport(
   f: (x: number) => number,
@@ -191,17 +214,26 @@ export function integrateAdaptiveReport(
   for (;;) {
     let value = 0;
     let error = 0;
+    let roundoff = 0;
     let worst = -1;
+    let depthLimited = false;
     for (let i = 0; i < segs.length; i++) {
       const s = segs[i]!;
       value += s.value;
       error += s.error;
-      if (s.depth < maxDepth && (worst < 0 || s.error > segs[worst]!.error)) worst = i;
+      roundoff += s.roundoff;
+      // A segment whose error is its rounding floor cannot improve by bisection: never pick it.
+      if (s.error <= 1.0001 * s.roundoff) continue;
+      if (s.depth >= maxDepth) depthLimited = true;
+      else if (worst < 0 || s.error > segs[worst]!.error) worst = i;
     }
     if (!Number.isFinite(value)) return { value, error: Infinity, evaluations, converged: false };
-    if (error <= Math.max(absTol, relTol * Math.abs(value)))
+    // A tolerance below the rounding floor cannot be met by bisecting: accept the floor (QUADPACK reports the same
+    // situation as roundoff, ier = 2).
+    if (error <= Math.max(absTol, relTol * Math.abs(value), 1.0001 * roundoff))
       return { value, error, evaluations, converged: true };
-    if (worst < 0 || segs.length >= maxSegments) return { value, error, evaluations, converged: false };
+    if (worst < 0) return { value, error, evaluations, converged: !depthLimited };
+    if (segs.length >= maxSegments) return { value, error, evaluations, converged: false };
     const s = segs[worst]!;
     const mid = 0.5 * (s.a + s.b);
     segs[worst] = gk15(f, s.a, mid, s.depth + 1);
