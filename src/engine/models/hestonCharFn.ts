@@ -92,7 +92,7 @@ export function hestonExponentGrid(
     const d2r = xr * xr - xiI * xiI + s2 * qr;
     const d2i = 2 * xr * xiI + s2 * qi;
     // principal sqrt
-    const mod = Math.hypot(d2r, d2i);
+    const mod = Math.sqrt(d2r * d2r + d2i * d2i); // Math.hypot is several times slower in V8
     let dr = Math.sqrt(0.5 * (mod + d2r));
     let di = Math.sqrt(Math.max(0, 0.5 * (mod - d2r)));
     if (d2i < 0) di = -di;
@@ -137,7 +137,7 @@ export function hestonExponentGrid(
     const wi = (wni * omgr - wnr * omgi) / wden;
     let Lr: number;
     let Li: number;
-    if (Math.hypot(wr, wi) < 1e-5) {
+    if (wr * wr + wi * wi < 1e-10) {
       const w2r = wr * wr - wi * wi;
       const w2i = 2 * wr * wi;
       const w3r = w2r * wr - w2i * wi;
@@ -145,7 +145,7 @@ export function hestonExponentGrid(
       Lr = wr - 0.5 * w2r + w3r / 3;
       Li = wi - 0.5 * w2i + w3i / 3;
     } else {
-      Lr = Math.log(Math.hypot(1 + wr, wi));
+      Lr = 0.5 * Math.log((1 + wr) * (1 + wr) + wi * wi);
       Li = Math.atan2(wi, 1 + wr);
     }
     const Cr = kt * T * mr - twoKtOverS2 * Lr;
