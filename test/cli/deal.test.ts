@@ -1,0 +1,96 @@
+import { describe, expect, it } from 'vitest';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import path from 'node:path';
+import { main, type CliIo } from '../../src/cli/main.ts';
+
+function capture(): CliIo & { outLines: string[]; errLines: string[] } {
+  const outLines: string[] = [];
+  const errLines: string[] = [];
+  return {
+    outLines,
+    errLines,
+    out: (l) => outLines.push(l),
+    err: (l) => errLines.push(l),
+    progress: () => {},
+  };
+}
+
+const dir = mkdtempSync(path.join(tmpdir(), 'ft-deal-'));
+const write = (name: string, value: unknown) => {
+  const f = path.join(dir, name);
+  writeFileSync(f, typeof value === 'string' ? value : JSON.stringify(value));
+  return f;
+};
+
+describe('factor-triage deal', () => {
+  it('check prints the analysis of a template and the validation caution, exit 0', async () => {
+    const io = capture();
+    expect(await main(['deal', 'check', 'samples/deals/long-dated-floating-note.json'], io)).toBe(0);
+    const text = io.outLines.join('\n');
+    expect(text).toMatch(/linear at natural dates/);
+    expect(text).toMatch(/funding spread\s+110 bp/);
+    expect(text).toMatch(/independent validation/);
+  });
+
+  it('check shows an expression error with its field, character and a caret, exit 2', async () => {
+    const f = write('bad.json', {
+      format: 'factor-triage/deal@1',
+      name: 'bad',
+      notional: 1,
+      currency: 'DOM',
+      underlyings: { ALDR: { kind: 'equity', currency: 'DOM' } },
+      schedules: { s: { dates: [1] } },
+      events: [{ on: 's', pay: { amount: 'max(ALDR - strike, 0)' } }],
+    });
+    const io = capture();
+    expect(await main(['deal', 'check', f], io)).toBe(2);
+    const err = io.errLines.join('\n');
+    expect(err).toMatch(/deal\.events\[0\]\.pay\.amount, character 12: unknown name strike/);
+    expect(io.errLines).toContain('    max(ALDR - strike, 0)');
+    expect(io.errLines).toContain(`    ${' '.repeat(11)}^^^^^^`);
+  });
+
+  it('check --json returns the analysis as data', async () => {
+    const io = capture();
+    expect(await main(['deal', 'check', 'samples/deals/worst-of-quanto.json', '--json'], io)).toBe(0);
+    const out = JSON.parse(io.outLines.join('\n')) as {
+      ok: boolean;
+      analysis: { quanto: { present: boolean } };
+    }[];
+    expect(out[0]!.ok).toBe(true);
+    expect(out[0]!.analysis.quanto.present).toBe(true);
+  });
+
+  it('unreadable JSON names the file and the fix, exit 2', async () => {
+    const io = capture();
+    expect(await main(['deal', 'check', write('broken.json', '{"format": ')], io)).toBe(2);
+    expect(io.errLines[0]).toMatch(/broken\.json: not valid JSON .*fix the file/);
+  });
+
+  it('an unknown subcommand is a usage error', async () => {
+    const io = capture();
+    expect(await main(['deal', 'frob'], io)).toBe(2);
+    expect(io.errLines.join('\n')).toMatch(/use check or price/);
+  });
+
+  it('price calibrates the base model on the demo market and prints value ± SE with the caution', async () => {
+    const io = capture();
+    const code = await main(
+      [
+        'deal',
+        'price',
+        'samples/deals/european-call.json',
+        'samples/market/demo-market.json',
+        '--paths',
+        '4096',
+      ],
+      io,
+    );
+    expect(code, io.errLines.join('\n')).toBe(0);
+    const text = io.outLines.join('\n');
+    expect(text).toMatch(/value in DOM \(notional 1000000\), 4096 paths/);
+    expect(text).toMatch(/\d+\.\d\d ± \d+\.\d\d/);
+    expect(text).toMatch(/independent validation/);
+  });
+});
