@@ -12,7 +12,8 @@
  *   Futures, and Other Derivatives', chapter on Black–Scholes–Merton, European options on dividend-paying stocks.
  * - Implied volatility: normalised price b(x, s) with x = ln(F/K), s = σ√T, as in Jäckel (2006) 'By implication'
  *   (Wilmott, Nov. 2006) and Jäckel (2015) 'Let's be rational' (Wilmott, Jan. 2015), Sec. 2. The root is found by
- *   safeguarded Newton steps on a transformed objective chosen per region, see {@link bsImpliedVol}.
+ *   safeguarded Newton steps on a transformed objective chosen per region, see {@link bsImpliedVol}. This is not
+ *   Jäckel's full algorithm (no rational initial guesses, no Householder steps); section numbers are from memory.
  */
 import { fail, requireFinite, requireNonNegative, requirePositive } from '../errors.ts';
 import { normCdf, normInv, normPdf } from '../math/normal.ts';

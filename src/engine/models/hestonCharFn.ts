@@ -1,6 +1,6 @@
 /**
  * Heston (1993) characteristic function of X = ln(S_T / F_T) (log of the terminal spot over the forward), in the
- * form of Albrecher, Mayer, Schoutens & Tistaert (2007), 'The little Heston trap', Wilmott Magazine, eq. (2) with
+ * form of Albrecher, Mayer, Schoutens & Tistaert (2007), 'The little Heston trap', Wilmott Magazine (equation number from memory: their second form), with
  * g₂ = (ξ − d)/(ξ + d), which stays on the principal branch of the complex logarithm for all maturities:
  *
  *   ξ = κ − ρσiu,  d = √(ξ² + σ²(iu + u²)),  g₂ = (ξ − d)/(ξ + d),

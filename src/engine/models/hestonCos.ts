@@ -1,6 +1,7 @@
 /**
  * Heston European options by the COS method: F. Fang, C. W. Oosterlee, 'A novel pricing method for European options
- * based on Fourier-cosine series expansions', SIAM J. Sci. Comput. 31(2), 2008.
+ * based on Fourier-cosine series expansions', SIAM J. Sci. Comput. 31(2), 2008. Equation numbers below are from memory;
+ * the formulas are checked against the Lewis integral and published prices in the tests.
  *
  * Variable: X = ln(S_T/F_T); one truncation range [a, b] and one pass of the characteristic function serve every
  * strike of a maturity (F&O eq. (9): density coefficients A_k = (2/(b−a)) Re[φ(u_k) e^{−iu_k a}], u_k = kπ/(b−a)).

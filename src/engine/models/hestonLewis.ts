@@ -1,7 +1,8 @@
 /**
  * Heston European options by the Lewis (2000) integral: A. Lewis, 'Option Valuation under Stochastic Volatility'
  * (Finance Press 2000), and 'A simple option formula for general jump-diffusion and other exponential Lévy
- * processes' (2001), eq. (9) / the 'Formula (2.10)' form:
+ * processes' (2001), the call-price formula with the integration contour at Im u = −1/2 (equation number not
+ * given here: cited from memory):
  *
  *   C = df · [F − (√(FK)/π) ∫₀^∞ Re(e^{iuk} φ(u − i/2)) / (u² + 1/4) du],  k = ln(F/K),
  *

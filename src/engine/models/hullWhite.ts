@@ -13,6 +13,8 @@
  * as in BM Sec. 3.3.2, eqs. (3.44)–(3.45): find x* with Σ cᵢ P(T, Tᵢ | x*) = strike, then sum bond options with
  * strikes Xᵢ = P(T, Tᵢ | x*).
  * σ may be piecewise constant (`sigma` array with right ends `sigmaTimes`, flat after the last).
+ * Equation numbers of BM other than (3.39)–(3.41) are from memory; every formula is checked by the tests (published
+ * bond-option, caplet and swaption values, parity, and a quadrature over the Gaussian state).
  */
 import { fail, requireFinite, requireNonNegative, requirePositive } from '../errors.ts';
 import type { DiscountCurve } from '../market/types.ts';

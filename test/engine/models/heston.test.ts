@@ -180,6 +180,39 @@ describe('COS against the Lewis integral (second method)', () => {
   });
 });
 
+describe('COS against Lewis on a seeded random parameter grid (second method)', () => {
+  it('agrees to 1e-8 for 40 parameter sets, T from 0.01 to 10, strikes K/S = 0.5..2', () => {
+    // Park–Miller minimal standard generator (seeded; common practice), so the grid is reproducible.
+    let seed = 7;
+    const rnd = () => {
+      seed = (seed * 16807) % 2147483647;
+      return seed / 2147483647;
+    };
+    const maturities = [0.01, 0.05, 0.1, 0.5, 1, 3, 10];
+    for (let n = 0; n < 40; n++) {
+      const T = maturities[Math.floor(rnd() * maturities.length)]!;
+      const params = P(
+        0.005 + rnd() * 0.3,
+        0.2 + rnd() * 6,
+        0.005 + rnd() * 0.3,
+        0.05 + rnd() * 1.5,
+        -0.95 + rnd() * 1.6,
+      );
+      const m: HestonMarket = { S: 100, T, r: 0.02, q: 0.01, params };
+      const strikes = [50, 80, 100, 125, 200];
+      const s = hestonCosSlice({ ...m, strikes, types: 'put' });
+      strikes.forEach((K, i) =>
+        close(
+          `T=${T} ${JSON.stringify(params)} K=${K}`,
+          s.prices[i]!,
+          hestonLewis({ ...m, type: 'put', K }),
+          1e-8,
+        ),
+      );
+    }
+  });
+});
+
 describe('Heston limits and identities', () => {
   it('satisfies put–call parity C − P = S e^{−qT} − K e^{−rT} (common practice)', () => {
     for (const K of [60, 100, 150]) {
