@@ -336,3 +336,37 @@ export function snapshotVolSurfaces(snapshot: MarketSnapshot): Record<string, Vo
   }
   return out;
 }
+
+/**
+ * {@link parseSnapshot} from JSON text: a syntax error becomes EngineError `E_JSON` naming the line and column
+ * where parsing stopped, so a hand-edited file can be fixed.
+ */
+export function parseSnapshotText(
+  text: string,
+  source = 'market file',
+): { snapshot: MarketSnapshot; warnings: FieldIssue[] } {
+  let json: unknown;
+  try {
+    json = JSON.parse(text);
+  } catch (e) {
+    const msg = e instanceof Error ? e.message : String(e);
+    const m = /position (\d+)/.exec(msg);
+    let where = '';
+    if (m) {
+      const pos = Number(m[1]);
+      const before = text.slice(0, pos);
+      const line = before.split('\n').length;
+      const column = pos - before.lastIndexOf('\n');
+      where = ` at line ${line}, column ${column}`;
+    }
+    const i = issue(
+      'E_JSON',
+      source,
+      `must be valid JSON${where}`,
+      msg,
+      'fix the syntax (a missing comma or quote is the usual cause)',
+    );
+    throw new EngineError('E_JSON', i.message, [i]);
+  }
+  return parseSnapshot(json);
+}

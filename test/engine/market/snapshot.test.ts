@@ -2,6 +2,7 @@ import { describe, it, expect } from 'vitest';
 import {
   dottedPath,
   parseSnapshot,
+  parseSnapshotText,
   snapshotCurves,
   snapshotVolSurfaces,
 } from '../../../src/engine/market/snapshot.ts';
@@ -151,5 +152,34 @@ describe('dottedPath', () => {
     expect(dottedPath(['curves', 'DOM', 'zeroRates', 2])).toBe('curves.DOM.zeroRates[2]');
     expect(dottedPath(['equities', 'ALDR', 'vols', 'vols', 2, 3])).toBe('equities.ALDR.vols.vols[2][3]');
     expect(dottedPath([])).toBe('(root)');
+  });
+});
+
+describe('parseSnapshotText', () => {
+  it('reads JSON text and reports a syntax error with its line and column', () => {
+    const text = JSON.stringify(sample(), null, 2);
+    expect(parseSnapshotText(text).warnings).toEqual([]);
+    const broken = text.replace('"domestic": "DOM",', '"domestic": "DOM"');
+    try {
+      parseSnapshotText(broken, 'samples/market/x.json');
+      expect.fail('should have thrown');
+    } catch (e) {
+      const err = e as EngineError;
+      expect(err.code).toBe('E_JSON');
+      expect(err.issues[0]!.field).toBe('samples/market/x.json');
+      expect(err.message).toMatch(/must be valid JSON at line 5, column \d+/);
+    }
+  });
+
+  it('rejects input that is not an object with a root-level issue', () => {
+    const e = (() => {
+      try {
+        parseSnapshot(null);
+      } catch (x) {
+        return x as EngineError;
+      }
+      throw new Error('expected an EngineError');
+    })();
+    expect(e.issues[0]!.field).toBe('(root)');
   });
 });
