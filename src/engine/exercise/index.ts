@@ -9,3 +9,4 @@ export * from './dualBound.ts';
 export * from './priceExerciseRight.ts';
 export * from './sources/lognormalBermudan.ts';
 export * from './sources/hullWhiteBermudanSwaption.ts';
+export * from './sources/dealExerciseSource.ts';

@@ -1,0 +1,201 @@
+/**
+ * Exercise rights of a compiled deal under one model variant, as an {@link ExerciseSource}: paths from the
+ * simulation engine's generator, cash flows, exercise values and regression features from the deal layer's
+ * `evaluateDetailed`.
+ *
+ * Normals follow the simulation engine's per-driver layout ([step][slot][path], one stream per driver seeded by
+ * `seed + ':' + driverName`, as its batchNormals), so two variants sharing the driver layout see the same random
+ * numbers for the same seed: the exercise passes keep the pairing of common random numbers.
+ *
+ * Nested paths for the dual bound: the inner paths of outer path p at exercise date j replay p's normals on every
+ * step up to t_j and draw fresh ones afterwards, so they coincide with p up to t_j (bit for bit, the generator being
+ * a deterministic function of its normals) and branch from its state there. The deal is then evaluated on the
+ * whole inner paths, which rebuilds every path-dependent quantity (running averages, state variables, knock-outs)
+ * from the shared history; only the exercise dates after t_j and the flows after t_j are used.
+ */
+import { EngineError, fail } from '../../errors.ts';
+import {
+  evaluateDetailed,
+  type DealEvaluatorOptions,
+  type DetailedEvaluation,
+} from '../../deal/dealEvaluator.ts';
+import type { CompiledDeal } from '../../deal/types.ts';
+import { makeNormalSource, makeUniformStream } from '../../random/index.ts';
+import { driverWidth, makeDriverLayout, type DriverLayout } from '../../simulation/drivers.ts';
+import {
+  modelBreakTimes,
+  normalsBlockSize,
+  prepareVariant,
+  type PrepareOptions,
+  type PreparedVariant,
+} from '../../simulation/pathGenerator.ts';
+import { makeTimeGrid } from '../../simulation/timeGrid.ts';
+import type { PathBatch, VariantSpec } from '../../simulation/types.ts';
+import type { ExerciseSource } from '../source.ts';
+import type { ExerciseHolder, ExerciseRight, ExerciseSample } from '../types.ts';
+
+/** Inputs of {@link dealExerciseSource}. */
+export interface DealExerciseSourceSpec {
+  compiled: CompiledDeal;
+  variant: VariantSpec;
+  /** Variants whose drivers make up the shared normals layout (default: this variant alone). */
+  layoutVariants?: VariantSpec[];
+  /** Largest simulation step in years. */
+  maxStep: number;
+  evaluator?: DealEvaluatorOptions;
+  prepare?: PrepareOptions;
+}
+
+/** Times and holder of the deal's exercise rights; all rights must be held by the same party. */
+function rightsOf(compiled: CompiledDeal): { times: number[]; holder: ExerciseHolder } {
+  if (compiled.exercise.length === 0)
+    fail(
+      'E_NO_EXERCISE',
+      'deal.exercise',
+      'must hold at least one exercise right to price early exercise',
+      [],
+    );
+  const holders = new Set(compiled.exercise.map((x) => x.by));
+  if (holders.size > 1)
+    fail(
+      'E_EXERCISE_MIXED',
+      'deal.exercise',
+      'must all be held by the same party (rights of both issuer and holder are not supported)',
+      [...holders],
+      'keep the issuer call or the holder put, not both',
+    );
+  const times = [...new Set(compiled.exercise.flatMap((x) => x.times))].sort((a, b) => a - b);
+  return { times, holder: compiled.exercise[0]!.by };
+}
+
+/** Builds the exercise source of a compiled deal under one variant. */
+export function dealExerciseSource(spec: DealExerciseSourceSpec): ExerciseSource & {
+  /** The prepared variant and the grid (for benchmarks and diagnostics). */
+  readonly prepared: PreparedVariant;
+  /** The paths `sample(nPaths, seed)` evaluates, for pricing the deal without its exercise rights on them. */
+  paths(nPaths: number, seed: string): PathBatch;
+} {
+  const { compiled, variant } = spec;
+  const { times, holder } = rightsOf(compiled);
+  const layoutVariants = spec.layoutVariants ?? [variant];
+  const layout: DriverLayout = makeDriverLayout(layoutVariants);
+  const grid = makeTimeGrid([...compiled.gridTimes, ...times], spec.maxStep, modelBreakTimes(layoutVariants));
+  const prepared = prepareVariant(variant, grid, layout, spec.prepare ?? {});
+  const n = times.length;
+  const nSteps = grid.times.length - 1;
+  const steps = times.map((t, j) => grid.indexOf(t, `deal.exercise.times[${j}]`));
+  const tol = 1e-10;
+  const segmentOf = (t: number): number => {
+    for (let j = 0; j < n; j++) if (t <= times[j]! + tol) return j;
+    return n;
+  };
+  const funding = compiled.fundingSpread ?? 0;
+  // Feature names from a probe evaluation on one path: they depend on the deal and the variant only.
+  let stateNames: string[] | undefined;
+  const normalsFor = (seed: string, nPaths: number): Float64Array => {
+    const w = layout.width;
+    const out = new Float64Array(normalsBlockSize(grid, layout, nPaths));
+    layout.names.forEach((name, d) => {
+      const src = makeNormalSource(makeUniformStream(`${seed}:${name}`));
+      const s0 = layout.slot[d]!;
+      const width = driverWidth(name);
+      for (let k = 0; k < nSteps; k++)
+        for (let s = s0; s < s0 + width; s++) src.fill(out, (k * w + s) * nPaths, nPaths);
+    });
+    return out;
+  };
+
+  function toSample(det: DetailedEvaluation, batch: PathBatch, from: number): ExerciseSample {
+    const P = det.nPaths;
+    const names = stateNames!;
+    const nd = n - from;
+    const state = new Float64Array(nd * names.length * P);
+    const exerciseValue = new Float64Array(nd * P);
+    const deflator = new Float64Array(nd * P);
+    const alive = new Uint8Array(nd * P);
+    // Columns of several rights on the same date are merged: a path may exercise any of them (the best for the
+    // holder, the cheapest for the issuer); their alive flags agree.
+    const best = holder === 'holder' ? Math.max : Math.min;
+    const seen = new Uint8Array(n);
+    for (const col of det.exercise) {
+      const j = times.findIndex((t) => Math.abs(t - col.time) <= tol);
+      if (j < from) continue;
+      const k = j - from;
+      for (let p = 0; p < P; p++) {
+        const v = col.value[p]!;
+        exerciseValue[k * P + p] = seen[j] ? best(exerciseValue[k * P + p]!, v) : v;
+        alive[k * P + p] = col.alive[p]! > 0 ? 1 : 0;
+      }
+      if (!seen[j]) {
+        names.forEach((name, v) => {
+          const f = col.features[name];
+          if (!f)
+            throw new EngineError(
+              'E_EXERCISE_FEATURES',
+              `the deal's exercise date ${col.time} lacks the regression variable ${name}`,
+            );
+          state.set(f, (k * names.length + v) * P);
+        });
+        const off = steps[j]! * P;
+        const fund = Math.exp(-funding * times[j]!);
+        for (let p = 0; p < P; p++) deflator[k * P + p] = batch.discount[off + p]! * fund;
+      }
+      seen[j] = 1;
+    }
+    const segments = new Float64Array((nd + 1) * P);
+    for (const flow of det.flows) {
+      const s = segmentOf(flow.time) - from;
+      if (s < 0) continue;
+      const off = s * P;
+      for (let p = 0; p < P; p++) segments[off + p] = segments[off + p]! + flow.values[p]!;
+    }
+    return { nPaths: P, nDates: nd, nState: names.length, state, exerciseValue, segments, deflator, alive };
+  }
+
+  function evaluate(normals: Float64Array, nPaths: number): { det: DetailedEvaluation; batch: PathBatch } {
+    const batch = prepared.simulate(normals, nPaths);
+    const det = evaluateDetailed(compiled, batch, spec.evaluator ?? {});
+    if (!stateNames) {
+      const first = det.exercise[0];
+      stateNames = first ? Object.keys(first.features).sort() : [];
+    }
+    return { det, batch };
+  }
+
+  // Probe once so that `right.stateNames` is known before the first pass.
+  evaluate(normalsFor('probe', 1), 1);
+  const right: ExerciseRight = {
+    times,
+    holder,
+    stateNames: stateNames!,
+    inTheMoneyOnly: holder === 'holder',
+  };
+  const outerNormals = new WeakMap<ExerciseSample, Float64Array>();
+
+  return {
+    right,
+    prepared,
+    paths: (nPaths, seed) => prepared.simulate(normalsFor(seed, nPaths), nPaths),
+    sample(nPaths, seed) {
+      const normals = normalsFor(seed, nPaths);
+      const { det, batch } = evaluate(normals, nPaths);
+      const s = toSample(det, batch, 0);
+      outerNormals.set(s, normals);
+      return s;
+    },
+    continueFrom(outer, j, p, nInner, seed) {
+      const on = outerNormals.get(outer);
+      if (!on) throw new EngineError('E_INTERNAL', 'inner paths need an outer sample drawn by this source');
+      const P = outer.nPaths;
+      const w = layout.width;
+      const normals = normalsFor(seed, nInner);
+      // Replay the outer path's normals on the steps up to t_j.
+      const kj = steps[j]!;
+      for (let k = 0; k < kj; k++)
+        for (let s = 0; s < w; s++)
+          normals.fill(on[(k * w + s) * P + p]!, (k * w + s) * nInner, (k * w + s + 1) * nInner);
+      const { det, batch } = evaluate(normals, nInner);
+      return toSample(det, batch, j + 1);
+    },
+  };
+}
