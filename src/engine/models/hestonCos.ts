@@ -115,6 +115,7 @@ function expand(
   kMax: number,
   opts: CosOptions,
   withGradient: boolean,
+  onlyV0 = false,
 ): Expansion {
   const tol = opts.tol ?? 1e-10 * m.S;
   requirePositive('cos.options.tol', tol);
@@ -151,7 +152,7 @@ function expand(
       Anew[m0 + j] = (2 / width) * mag * Math.cos(ph);
     }
     if (withGradient) {
-      const g = gradientCoefficients(m, u, a, width);
+      const g = gradientCoefficients(m, u, a, width, onlyV0);
       grads = g.map((arr, p) => {
         const out = new Float64Array(m1);
         if (grads[p]) out.set(grads[p]!);
@@ -194,7 +195,13 @@ export const HESTON_GRADIENT_PARAMS = ['v0', 'kappa', 'theta', 'sigma', 'rho'] a
  * κ, σ, ρ: central differences of the exponent C + D v₀ at fixed truncation (relative step 1e-5), which keeps the
  * gradient consistent with the truncated series the price uses.
  */
-function gradientCoefficients(m: HestonMarket, u: Float64Array, a: number, width: number): Float64Array[] {
+function gradientCoefficients(
+  m: HestonMarket,
+  u: Float64Array,
+  a: number,
+  width: number,
+  onlyV0: boolean,
+): Float64Array[] {
   const len = u.length;
   const p = m.params;
   const eRe = new Float64Array(len);
@@ -206,7 +213,7 @@ function gradientCoefficients(m: HestonMarket, u: Float64Array, a: number, width
   // v0
   exps.push({ re: dRe, im: dIm });
   // κ, θ, σ, ρ
-  for (const name of ['kappa', 'theta', 'sigma', 'rho'] as const) {
+  for (const name of onlyV0 ? [] : (['kappa', 'theta', 'sigma', 'rho'] as const)) {
     if (name === 'theta') {
       // ∂(C + D v0)/∂θ = C/θ = (E − D v0)/θ; for θ = 0 fall back to a one-sided difference.
       if (p.theta > 0) {
@@ -346,13 +353,12 @@ export interface HestonGreeks {
  * v0 (analytic ∂φ/∂v0). Per strike of one slice.
  */
 export function hestonCosGreeks(input: HestonSliceInput): HestonGreeks[] {
-  const g = hestonCosSliceWithGradient(input);
   validateHeston('heston', input);
   const F = input.S * Math.exp((input.r - input.q) * input.T);
   const df = Math.exp(-input.r * input.T);
   const growth = Math.exp((input.r - input.q) * input.T);
   const kMax = checkStrikes('heston', input.strikes);
-  const ex = expand(input, F, kMax, input.options ?? {}, false);
+  const ex = expand(input, F, kMax, input.options ?? {}, true, true);
   const width = ex.b - ex.a;
   const out: HestonGreeks[] = [];
   for (let i = 0; i < input.strikes.length; i++) {
@@ -365,7 +371,10 @@ export function hestonCosGreeks(input: HestonSliceInput): HestonGreeks[] {
     const inside = c > ex.a && c < ex.b;
     const gamma = inside ? df * (K / (F * F)) * s.cosSum * growth * growth : 0;
     const delta = type === 'put' ? deltaPut : deltaPut + Math.exp(-input.q * input.T);
-    out.push({ price: g.prices[i]!, delta, gamma, vegaV0: g.gradient[i]!.v0 });
+    const put = df * (K * s.psi - F * s.chi);
+    const price = type === 'put' ? put : put + df * (F - K);
+    const v = putSums(ex.grad![0]!, ex.a, width, c);
+    out.push({ price, delta, gamma, vegaV0: df * (K * v.psi - F * v.chi) });
   }
   return out;
 }

@@ -10,6 +10,7 @@ import {
   hestonCosSlice,
   hestonCosSliceWithGradient,
   hestonLewis,
+  hestonCumulants,
   type HestonMarket,
   type HestonParams,
 } from '../../../src/engine/models/index.ts';
@@ -239,6 +240,13 @@ describe('Heston limits and identities', () => {
     const mart = hestonCharFn(p, 1, Complex.of(0, -1));
     close('Re φ(−i)', mart.re, 1, 1e-12);
     close('Im φ(−i)', mart.im, 0, 1e-12);
+  });
+
+  it('has cumulants c1 = −θT/2 and c2 = θT in the Black–Scholes limit σ → 0, v0 = θ (limit)', () => {
+    const c = hestonCumulants(P(0.05, 2, 0.05, 1e-6, -0.5), 2);
+    close('c1', c.c1, -0.05, 1e-12);
+    close('c2', c.c2, 0.1, 1e-7); // c2 is read off numerically (Richardson), about 1e-7 relative: enough for a range
+    close('c4', c.c4, 0, 1e-6);
   });
 
   it('inlined characteristic function agrees with the Complex reference on a grid of u', () => {
