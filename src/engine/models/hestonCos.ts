@@ -31,6 +31,8 @@ export interface CosOptions {
   L?: number;
   /** Fixed number of terms (overrides the adaptive choice). */
   N?: number;
+  /** Explicit truncation range of X = ln(S_T/F) (overrides L). */
+  range?: { a: number; b: number };
 }
 
 /** A slice of strikes of one maturity. */
@@ -123,8 +125,9 @@ function expand(
   const L = opts.L ?? defaultTruncationL(c2, c4, tol / m.S);
   requirePositive('cos.options.L', L);
   const half = L * Math.sqrt(c2 + Math.sqrt(Math.abs(c4)));
-  const a = c1 - half;
-  const b = c1 + half;
+  const a = opts.range ? opts.range.a : c1 - half;
+  const b = opts.range ? opts.range.b : c1 + half;
+  if (!(b > a)) fail('E_RANGE', 'cos.options.range', 'must have b > a', opts.range);
   const width = b - a;
   const fixedN = opts.N;
   const nMax = fixedN ?? 65536;
