@@ -105,6 +105,9 @@ export const settingsSchema = z.object({
     terminationRateMaturity: num.nonnegative(),
     volCandidateMaturity: num.nonnegative(),
   }),
+  extraCandidates: z.array(factorId),
+  calibrationStrikes: z.record(z.string(), num.positive()),
+  auxiliaryFraction: num.gt(0).lte(1),
 });
 
 const verdict = z.object({

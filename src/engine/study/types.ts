@@ -48,6 +48,12 @@ export interface StudySettings {
   /** The local-volatility diagnostic beside the ladder. */
   localVol: boolean;
   rules: RuleSettings;
+  /** Factors simulated even where the rules say `notNeeded`, to confirm the rules by Δ. */
+  extraCandidates: FactorId[];
+  /** Absolute strike of the Black–Scholes calibration targets per equity (default: the ATM forward). */
+  calibrationStrikes: Record<string, number>;
+  /** Share of `paths` used by the auxiliary runs (step halving, sweeps, other snapshots), in (0, 1]. */
+  auxiliaryFraction: number;
 }
 
 /** Bump sizes and materiality thresholds of the hedge ratios. */
@@ -172,8 +178,10 @@ export interface StudyResults {
   localVol: { smile: ValueSe; dynamics: ValueSe; total: ValueSe } | null;
   /** Spread of prices across variants that fit the market within tolerance. */
   modelRisk: { min: number; max: number; spread: number; variants: string[] };
-  /** Step-halving change per factor's Δ. */
+  /** Step-halving part of each factor's budget: max(0, |change of Δ on the halved grid| − 2 SE of that change). */
   stepHalving: Record<string, number>;
+  /** The raw change of each Δ when the step is halved (same random numbers), with its SE. */
+  stepHalvingChange: Record<string, ValueSe>;
   /** Other snapshots: per date, the verdicts and calibrated parameters. */
   stability: {
     date: string;

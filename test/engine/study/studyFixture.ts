@@ -28,6 +28,9 @@ export function fixtureStudy(): SavedStudy {
         sweeps: null,
         localVol: false,
         rules: DEFAULT_RULE_SETTINGS,
+        extraCandidates: [],
+        calibrationStrikes: {},
+        auxiliaryFraction: 0.25,
       },
     },
     analysis: { format: 'factor-triage/deal-analysis@1', lastTime: 1 } as never,
@@ -66,6 +69,7 @@ export function fixtureStudy(): SavedStudy {
       localVol: null,
       modelRisk: { min: 10.5, max: 10.5, spread: 0, variants: ['base'] },
       stepHalving: {},
+      stepHalvingChange: {},
       stability: [],
     },
     verdicts: [

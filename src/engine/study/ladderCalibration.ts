@@ -1,0 +1,434 @@
+/**
+ * Calibrated model variants of the ladder (DESIGN steps 4–5): the base model plus every subset of the candidate
+ * factors, each a valid VariantSpec calibrated to the same market instruments.
+ *
+ * - Black–Scholes: piecewise-constant forward vols reproducing the spot-ATM implied total variance at each grid
+ *   expiry up to the deal's last date (σ²_i (T_i − T_{i−1}) = w_i − w_{i−1}, w = σ_imp² T; common practice).
+ * - Black–Scholes under Hull–White (fair): the same quotes refitted in closed form. Under the T-forward measure
+ *   Var ln F(T) = ∫ σ_S² + 2ρ σ_S σ_r B(t,T) + σ_r² B(t,T)² dt (Rabinovitch 1989; Brigo & Mercurio 2006, Ch. 13–14),
+ *   bootstrapped expiry by expiry with a one-dimensional root (Brent) so each quote's variance is matched.
+ * - Heston: fitted to the grid quotes up to the deal's last date by COS (Fang & Oosterlee 2008), through the
+ *   calibration layer; under Hull–White (fair) by the H1-HW characteristic function (Grzelak & Oosterlee 2011),
+ *   an approximation, labelled as such.
+ * - Hull–White: a and σ fitted to the currency's caplet vols (normal → Bachelier, lognormal → Black), θ(t) from the
+ *   curve; caplet prices in closed form (Brigo & Mercurio 2006, eq. 3.41).
+ * - Naive mode: the deterministic-rate equity fit is kept and the rate factor is added without refitting
+ *   (labelled: it measures miscalibration as well as the factor).
+ */
+import { fail } from '../errors.ts';
+import type { DealAnalysis } from '../deal/types.ts';
+import type { EquityQuote, MarketSnapshot } from '../market/types.ts';
+import type {
+  EquityDynamics,
+  EquitySpec,
+  FxSpec,
+  HestonParams,
+  HullWhiteParams,
+  RateSpec,
+  VariantSpec,
+} from '../simulation/types.ts';
+import { makeCurve } from '../market/curve.ts';
+import { bsPrice } from '../models/blackScholes.ts';
+import { calibrateHeston, hestonModelPrices } from '../calibration/hestonCalibration.ts';
+import {
+  bsForwardVols,
+  bsHullWhiteRefit,
+  bsTargetsFromGrid,
+} from '../calibration/blackScholesCalibration.ts';
+import { calibrateHullWhite } from '../calibration/hullWhiteCalibration.ts';
+import { gridQuotes, type VolQuote } from '../calibration/volGrid.ts';
+import type { CalibrationMode, FitRow, LadderVariant } from './types.ts';
+import { FACTOR_IDS, type FactorId } from './rules.ts';
+
+const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
+
+/** What the ladder is calibrated from. */
+export interface LadderRequest {
+  snapshot: MarketSnapshot;
+  analysis: DealAnalysis;
+  /** Candidate factors in bit order (bit i of a mask = candidates[i]). */
+  candidates: FactorId[];
+  /** Factors present in every variant. */
+  required: FactorId[];
+  mode: CalibrationMode;
+  scheme: 'qe' | 'euler';
+  /** Absolute shift of every equity implied vol (vega scenarios); default 0. */
+  volShift?: number;
+  /** Warm starts for Heston, keyed by equity market name (vega scenarios recalibrate from the fitted parameters). */
+  warmStart?: Record<string, HestonParams>;
+  /** Overrides of correlations, keyed `A|B` (sweeps). */
+  correlationOverride?: Record<string, number>;
+  /** Absolute strike of the Black–Scholes targets per equity (default: the ATM forward at each expiry). */
+  bsStrikes?: Record<string, number>;
+}
+
+/** The calibrated ladder. */
+export interface CalibratedLadder {
+  variants: LadderVariant[];
+  /** Fitted Hull–White parameters per currency (only currencies whose rate is stochastic somewhere). */
+  hullWhite: Record<
+    string,
+    { params: HullWhiteParams; rmseBp: number; rows: FitRow[]; seconds: number; warnings: string[] }
+  >;
+  /** Heston parameters per equity under deterministic rates (for warm starts and stability). */
+  heston: Record<string, HestonParams>;
+  warnings: string[];
+  seconds: number;
+}
+
+/** The factors of a mask. */
+export function maskFactors(mask: number, candidates: FactorId[], required: FactorId[]): FactorId[] {
+  const set = new Set<FactorId>(required);
+  candidates.forEach((f, i) => {
+    if (mask & (1 << i)) set.add(f);
+  });
+  return FACTOR_IDS.filter((f) => set.has(f));
+}
+
+/** Short id of a factor set, e.g. `bs`, `heston+hw(DOM)`. */
+export function variantId(factors: FactorId[], foreign: string[], domestic: string): string {
+  const parts = [factors.includes('stochVol') ? 'heston' : 'bs'];
+  if (factors.includes('domesticRate')) parts.push(`hw(${domestic})`);
+  if (factors.includes('foreignRate')) parts.push(`hw(${foreign.join(',')})`);
+  return parts.join('+');
+}
+
+function variantLabel(factors: FactorId[], foreign: string[], domestic: string): string {
+  const eq = factors.includes('stochVol') ? 'Heston' : 'Black–Scholes';
+  const r: string[] = [];
+  if (factors.includes('domesticRate')) r.push(`Hull–White ${domestic}`);
+  if (factors.includes('foreignRate')) r.push(`Hull–White ${foreign.join('/')}`);
+  return r.length ? `${eq} + ${r.join(' + ')}` : `${eq}, deterministic rates`;
+}
+
+function corrOf(s: MarketSnapshot, a: string, b: string, override?: Record<string, number>): number {
+  const o = override?.[`${a}|${b}`] ?? override?.[`${b}|${a}`];
+  if (o !== undefined) return o;
+  const i = s.correlation.names.indexOf(a);
+  const j = s.correlation.names.indexOf(b);
+  return i >= 0 && j >= 0 ? (s.correlation.matrix[i]?.[j] ?? 0) : 0;
+}
+
+function shiftedEquity(eq: EquityQuote, shift: number): EquityQuote {
+  if (!shift) return eq;
+  return {
+    ...eq,
+    vols: { ...eq.vols, vols: eq.vols.vols.map((row) => row.map((v) => Math.max(1e-4, v + shift))) },
+  };
+}
+
+/** Grid expiries used to calibrate the equities: every expiry up to the deal's last date, plus the first beyond. */
+export function calibrationExpiries(expiries: number[], lastTime: number): number[] {
+  const out = expiries.filter((t) => t <= lastTime + 1e-9);
+  const beyond = expiries.find((t) => t > lastTime + 1e-9);
+  if (beyond !== undefined) out.push(beyond);
+  return out.length ? out : expiries.slice(0, 1);
+}
+
+/** Black–Scholes forward vols to the targets (deterministic rates) or their fair refit under Hull–White. */
+function fitBs(
+  name: string,
+  eq: EquityQuote,
+  curveSpec: MarketSnapshot['curves'][string],
+  expiries: number[],
+  strike: number | undefined,
+  rates: { hw: HullWhiteParams; rho: number } | null,
+): { dynamics: EquityDynamics & { kind: 'bs' }; rows: FitRow[]; seconds: number } {
+  const curve = makeCurve(curveSpec, `market.curves.${eq.currency}`);
+  const targets = bsTargetsFromGrid(eq, curve, {
+    expiries,
+    ...(strike !== undefined ? { strikes: strike } : {}),
+  });
+  const field = `market.equities.${name}.vols`;
+  const cal = rates
+    ? bsHullWhiteRefit({
+        targets,
+        hw: rates.hw,
+        rhoSR: rates.rho,
+        spot: eq.spot,
+        divYield: eq.divYield,
+        curve,
+        field,
+      })
+    : bsForwardVols(targets, field);
+  const rows: FitRow[] = targets.map((t, i) => {
+    const err = cal.repricingErrorPoints[i]! / 100;
+    const r = -Math.log(curve.df(t.expiry)) / t.expiry;
+    const px = (vol: number) =>
+      bsPrice({ type: 'call', S: eq.spot, K: t.strike, T: t.expiry, r, q: eq.divYield, vol });
+    return {
+      instrument: `${name} call K=${Math.round(t.strike * 100) / 100} T=${t.expiry}`,
+      marketVol: t.vol,
+      modelVol: t.vol + err,
+      priceError: px(t.vol + err) - px(t.vol),
+      mcError: null,
+    };
+  });
+  return { dynamics: cal.dynamics, rows, seconds: cal.seconds };
+}
+
+function fitHeston(
+  name: string,
+  eq: EquityQuote,
+  curveSpec: MarketSnapshot['curves'][string],
+  expiries: number[],
+  rates: { hw: HullWhiteParams; rho: number } | null,
+  warm: HestonParams | undefined,
+): { params: HestonParams; rows: FitRow[]; seconds: number; feller: number; warnings: string[] } {
+  const curve = makeCurve(curveSpec, `market.curves.${eq.currency}`);
+  const keep = new Set(expiries);
+  const quotes: VolQuote[] = gridQuotes(eq, curve, `market.equities.${name}`).filter((q) =>
+    keep.has(q.expiry),
+  );
+  const res = calibrateHeston({
+    name,
+    equity: eq,
+    curve,
+    quotes,
+    ...(rates ? { rates: { hw: rates.hw, rhoSR: rates.rho } } : {}),
+    ...(warm ? { starts: [warm] } : {}),
+  });
+  const rows: FitRow[] = res.rows.map((r) => ({
+    instrument: `${name} ${r.strike !== undefined ? `K=${Math.round(r.strike * 100) / 100}` : ''} T=${r.expiry}`,
+    marketVol: r.marketVol,
+    modelVol: r.modelVol,
+    priceError: r.modelPrice - r.marketPrice,
+    mcError: null,
+  }));
+  const warnings = res.warnings.map((w) => w.message);
+  if (!res.ok)
+    warnings.push(
+      `Heston fit of ${name} did not meet its tolerance (RMSE ${res.rmseVolPoints.toFixed(3)} vol points)`,
+    );
+  return { params: res.params, rows, seconds: res.seconds, feller: res.feller.ratio, warnings };
+}
+
+/** Hull–White a, σ fitted to the rate vols of one currency whose quotes end by the deal's last date (at least two). */
+export function fitHullWhite(
+  snapshot: MarketSnapshot,
+  ccy: string,
+  lastTime: number,
+): { params: HullWhiteParams; rmseBp: number; rows: FitRow[]; seconds: number; warnings: string[] } {
+  const spec = snapshot.rateVols?.[ccy];
+  if (!spec)
+    fail(
+      'E_NO_RATE_VOLS',
+      `market.rateVols.${ccy}`,
+      'must give caplet or swaption vols to calibrate the stochastic rate',
+      undefined,
+      `add rateVols.${ccy} to the market snapshot, or mark the ${ccy} rate as not needed`,
+    );
+  const curveSpec = snapshot.curves[ccy];
+  if (!curveSpec) fail('E_NO_CURVE', `market.curves.${ccy}`, 'must exist', undefined);
+  const curve = makeCurve(curveSpec, `market.curves.${ccy}`);
+  const sorted = spec.quotes.slice().sort((a, b) => a.expiry - b.expiry);
+  let quotes = sorted.filter((q) => q.expiry + q.tenor <= lastTime + 1e-9);
+  if (quotes.length < 2) quotes = sorted.slice(0, Math.min(2, sorted.length));
+  const cal = calibrateHullWhite({ currency: ccy, curve, rateVols: { ...spec, quotes } });
+  const rows: FitRow[] = cal.rows.map((r) => ({
+    instrument: `${ccy} ${r.instrument} ${r.expiry}y×${r.tenor}y`,
+    marketVol: r.marketVol,
+    modelVol: r.modelVol,
+    priceError: r.priceError,
+    mcError: null,
+  }));
+  const warnings = cal.warnings.map((w) => w.message);
+  if (!cal.ok)
+    warnings.push(
+      `Hull–White fit of ${ccy} did not meet its tolerance (RMSE ${cal.rmseVol.toFixed(2)} ${cal.volUnit})`,
+    );
+  return { params: cal.params, rmseBp: cal.rmseVol, rows, seconds: cal.seconds, warnings };
+}
+
+/** Builds and calibrates every variant of the ladder (2^k masks). */
+export function calibrateLadder(req: LadderRequest): CalibratedLadder {
+  const t0 = now();
+  const { snapshot: s, analysis: a, candidates, required } = req;
+  const dom = a.currency;
+  const warnings: string[] = [];
+  if (!s.curves[dom])
+    fail(
+      'E_NO_CURVE',
+      `market.curves.${dom}`,
+      `must give the curve of the deal currency ${dom}`,
+      Object.keys(s.curves),
+    );
+  const foreign = a.currencies.filter((c) => c !== dom);
+  for (const c of foreign)
+    if (!s.curves[c])
+      fail(
+        'E_NO_CURVE',
+        `market.curves.${c}`,
+        `must give the curve of ${c}, a currency of the deal`,
+        Object.keys(s.curves),
+      );
+  const equities = a.equities.map((e) => {
+    const q = s.equities[e.marketName];
+    if (!q)
+      fail(
+        'E_UNKNOWN_UNDERLYING',
+        `deal.underlyings.${e.id}`,
+        `must name an equity of the market (market has ${Object.keys(s.equities).join(', ') || 'none'})`,
+        e.marketName,
+        'add it to the market snapshot or correct the name',
+      );
+    return { ...e, quote: shiftedEquity(q, req.volShift ?? 0) };
+  });
+  const fxs: FxSpec[] = foreign.map((c) => {
+    const entry = Object.entries(s.fx ?? {}).find(([, x]) => x.foreign === c && x.domestic === dom);
+    if (!entry)
+      fail(
+        'E_NO_FX',
+        'market.fx',
+        `must quote ${dom} per ${c} (the deal involves ${c})`,
+        Object.keys(s.fx ?? {}),
+        `add an FX entry with foreign ${c} and domestic ${dom}`,
+      );
+    return { name: entry[0], foreign: c, spot: entry[1].spot, vol: entry[1].vol };
+  });
+
+  // Hull–White per currency, fitted once.
+  const hwNeeded = new Set<string>();
+  const allFactors = [...candidates, ...required];
+  if (allFactors.includes('domesticRate')) hwNeeded.add(dom);
+  if (allFactors.includes('foreignRate')) foreign.forEach((c) => hwNeeded.add(c));
+  const hullWhite: CalibratedLadder['hullWhite'] = {};
+  for (const c of hwNeeded) {
+    hullWhite[c] = fitHullWhite(s, c, a.lastTime);
+    warnings.push(...hullWhite[c]!.warnings);
+  }
+
+  const cache = new Map<string, unknown>();
+  const memo = <T>(key: string, f: () => T): { value: T; fresh: boolean } => {
+    if (cache.has(key)) return { value: cache.get(key) as T, fresh: false };
+    const v = f();
+    cache.set(key, v);
+    return { value: v, fresh: true };
+  };
+  const hestonDet: Record<string, HestonParams> = {};
+
+  const variants: LadderVariant[] = [];
+  const nMasks = 1 << candidates.length;
+  for (let mask = 0; mask < nMasks; mask++) {
+    const factors = maskFactors(mask, candidates, required);
+    const stochRate = (ccy: string) =>
+      (ccy === dom && factors.includes('domesticRate')) || (ccy !== dom && factors.includes('foreignRate'));
+    const rates: Record<string, RateSpec> = {};
+    for (const c of [dom, ...foreign]) {
+      rates[c] = { curve: s.curves[c]! };
+      if (stochRate(c)) rates[c]!.hw = hullWhite[c]!.params;
+    }
+    let seconds = 0;
+    const fit: FitRow[] = [];
+    const vWarnings: string[] = [];
+    const feller: Record<string, number> = {};
+    let cf: 'exact' | 'approximate' | 'none' = 'exact';
+    const eqSpecs: EquitySpec[] = equities.map((e) => {
+      const expiries = calibrationExpiries(e.quote.vols.expiries, a.lastTime);
+      const hwHere = stochRate(e.currency) ? hullWhite[e.currency]!.params : null;
+      const rho = corrOf(s, `eq:${e.marketName}`, `rate:${e.currency}`, req.correlationOverride);
+      const refit = hwHere && req.mode === 'fair' ? { hw: hwHere, rho } : null;
+      const curveSpec = s.curves[e.currency]!;
+      let dynamics: EquityDynamics;
+      if (factors.includes('stochVol')) {
+        const r = memo(`heston|${e.marketName}|${JSON.stringify(refit)}`, () =>
+          fitHeston(e.marketName, e.quote, curveSpec, expiries, refit, req.warmStart?.[e.marketName]),
+        );
+        if (r.fresh) seconds += r.value.seconds;
+        if (!refit) hestonDet[e.marketName] = r.value.params;
+        if (refit) cf = 'approximate';
+        dynamics = { kind: 'heston', ...r.value.params };
+        fit.push(...r.value.rows);
+        vWarnings.push(...r.value.warnings);
+        feller[e.marketName] = r.value.feller;
+      } else {
+        const r = memo(`bs|${e.marketName}|${JSON.stringify(refit)}|${req.bsStrikes?.[e.marketName]}`, () =>
+          fitBs(e.marketName, e.quote, curveSpec, expiries, req.bsStrikes?.[e.marketName], refit),
+        );
+        if (r.fresh) seconds += r.value.seconds;
+        dynamics = r.value.dynamics;
+        fit.push(...r.value.rows);
+      }
+      return {
+        name: e.marketName,
+        currency: e.currency,
+        spot: e.quote.spot,
+        divYield: e.quote.divYield,
+        dynamics,
+      };
+    });
+    for (const c of Object.keys(hullWhite)) if (stochRate(c)) fit.push(...hullWhite[c]!.rows);
+    if (req.mode === 'naive' && factors.some((f) => f !== 'stochVol'))
+      vWarnings.push('naive: the equity fit under deterministic rates is kept after adding stochastic rates');
+    const names = s.correlation.names.slice();
+    const matrix = s.correlation.matrix.map((row, i) =>
+      row.map((v, j) => (i === j ? 1 : (corrOf(s, names[i]!, names[j]!, req.correlationOverride) ?? v))),
+    );
+    // A Heston equity's spot–variance correlation is its fitted ρ (the market's entry is only a starting view).
+    for (const e of eqSpecs) {
+      if (e.dynamics.kind !== 'heston') continue;
+      const i = names.indexOf(`eq:${e.name}`);
+      const j = names.indexOf(`var:${e.name}`);
+      if (i >= 0 && j >= 0) {
+        matrix[i]![j] = e.dynamics.rho;
+        matrix[j]![i] = e.dynamics.rho;
+      } else if (i >= 0) {
+        names.push(`var:${e.name}`);
+        matrix.forEach((row) => row.push(0));
+        matrix.push(
+          names.map((_, c) =>
+            c === names.length - 1
+              ? 1
+              : c === i
+                ? e.dynamics.kind === 'heston'
+                  ? (e.dynamics as HestonParams).rho
+                  : 0
+                : 0,
+          ),
+        );
+        matrix[i]![names.length - 1] = (e.dynamics as HestonParams).rho;
+      }
+    }
+    const id = variantId(factors, foreign, dom) + (req.mode === 'naive' ? '~naive' : '');
+    const spec: VariantSpec = {
+      id,
+      label: variantLabel(factors, foreign, dom),
+      domestic: dom,
+      equities: eqSpecs,
+      rates,
+      fx: fxs,
+      correlation: { names, matrix },
+      hestonScheme: req.scheme,
+    };
+    const eqErrs = fit
+      .filter((f) => !f.instrument.includes('caplet'))
+      .map((f) => Math.abs(f.modelVol - f.marketVol));
+    variants.push({
+      id,
+      label: spec.label + (req.mode === 'naive' ? ' (naive: not refitted)' : ''),
+      mask,
+      factors,
+      role: req.mode === 'naive' ? 'naive' : 'ladder',
+      spec,
+      calibration: {
+        characteristicFunction: cf,
+        rmseVol: eqErrs.length ? Math.sqrt(eqErrs.reduce((t, x) => t + x * x, 0) / eqErrs.length) : 0,
+        maxAbsVolError: eqErrs.length ? Math.max(...eqErrs) : 0,
+        seconds:
+          seconds +
+          Object.keys(hullWhite)
+            .filter(stochRate)
+            .reduce((t, c) => t + hullWhite[c]!.seconds, 0),
+        fit,
+        warnings: vWarnings,
+        feller,
+      },
+    });
+  }
+  return { variants, hullWhite, heston: hestonDet, warnings, seconds: (now() - t0) / 1000 };
+}
+
+/** Heston model price of one vanilla (for closed-form checks of the study). */
+export function hestonVanilla(p: HestonParams, q: VolQuote): number {
+  return hestonModelPrices(p, [q])[0]!;
+}

@@ -1,0 +1,879 @@
+/**
+ * `runStudy`: the factor study end to end (DESIGN steps 3–9). Rules → calibrated ladder → step-halving check →
+ * vega scenarios → main run in looks (common random numbers, leave-one-out Δ, sequential decision) → joint test,
+ * Shapley attribution, hedge-ratio tests → evidence of fairness → correlation sweeps → other snapshots → sealed file.
+ * Pure engine code: batches run on whatever executor the caller supplies (in process by default).
+ */
+import { EngineError, fail } from '../errors.ts';
+import { compileDeal } from '../deal/compileDeal.ts';
+import { analyseDeal } from '../deal/analyseDeal.ts';
+import { studyDealFactoryUrl } from './studyDealFactory.ts';
+import type { CompiledDeal, DealAnalysis } from '../deal/types.ts';
+import { parseSnapshot } from '../market/snapshot.ts';
+import { makeCurve } from '../market/curve.ts';
+import type { MarketSnapshot } from '../market/types.ts';
+import { isPsd } from '../math/linalg.ts';
+import { bsPrice } from '../models/blackScholes.ts';
+import { bsImpliedVol } from '../models/blackScholes.ts';
+import { gridVolAt } from '../calibration/volGrid.ts';
+import { equityForward } from '../calibration/volGrid.ts';
+import { inProcessExecutor, type BatchExecutor } from '../simulation/runSimulation.ts';
+import type { RunSpec } from '../simulation/runSpec.ts';
+import { columnStats, type MomentSums } from '../simulation/momentSums.ts';
+import type { PathShift, VariantSpec } from '../simulation/types.ts';
+import {
+  decideLook,
+  decideSequential,
+  jointTest,
+  lookSchedule,
+  thresholdAmount,
+  type ErrorBudget,
+  type FactorEstimate,
+} from './decision.ts';
+import { applyRules, candidateFactors, requiredFactors, FACTOR_LABELS, type FactorId } from './rules.ts';
+import { calibrateLadder, calibrationExpiries, type CalibratedLadder } from './ladderCalibration.ts';
+import { combination, type ColumnStats } from './stats.ts';
+import { shapley } from './shapley.ts';
+import { runInLooks } from './runInLooks.ts';
+import { runStepHalving } from './stepHalving.ts';
+import { fairnessPayoffFactoryUrl, type FairnessVanilla } from './fairnessPayoffFactory.ts';
+import { sealStudy, settingsSchema } from './savedStudy.ts';
+import {
+  STUDY_FORMAT,
+  TOOL_NAME,
+  type FactorVerdict,
+  type GreekVerdict,
+  type SavedStudy,
+  type StudyInput,
+  type StudyResults,
+  type StudySettings,
+  type Sweep,
+  type ValueSe,
+} from './types.ts';
+
+/** Version written into study files. */
+export const TOOL_VERSION = '0.1.0';
+
+/** Progress of a study. */
+export interface StudyProgress {
+  /** 0 … 1 over the whole study. */
+  fraction: number;
+  stage: string;
+  detail?: string;
+}
+
+export interface RunStudyOptions {
+  signal?: AbortSignal;
+  onProgress?: (p: StudyProgress) => void;
+  /** Worker count to ask of `makeExecutor` (recorded in the timings). Default 1. */
+  workers?: number;
+  /** Builds the batch executor (worker threads, Web Workers); default: in process. */
+  makeExecutor?: (workers: number) => BatchExecutor;
+}
+
+const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
+
+/** Default settings; every field can be overridden. */
+export const DEFAULT_SETTINGS: StudySettings = {
+  seed: 'factor-triage',
+  paths: 65536,
+  firstPaths: 8192,
+  batchSize: 4096,
+  maxStep: 0.25,
+  scheme: 'qe',
+  alpha: 0.05,
+  spending: 'obrienFleming',
+  threshold: { kind: 'bp', value: 10 },
+  calibration: 'fair',
+  greeks: {
+    spotBump: 0.01,
+    rateBump: 1e-4,
+    volBump: 0.01,
+    deltaThreshold: 0.5,
+    vegaThreshold: 0.5,
+    rhoThreshold: 0.5,
+  },
+  sweeps: { points: 5 },
+  localVol: true,
+  rules: { rateCandidateMaturity: 5, terminationRateMaturity: 2, volCandidateMaturity: 30 },
+  extraCandidates: [],
+  calibrationStrikes: {},
+  auxiliaryFraction: 0.25,
+};
+
+/** Validates settings, naming the first bad field. */
+export function checkSettings(raw: unknown): StudySettings {
+  const r = settingsSchema.safeParse(raw);
+  if (!r.success) {
+    const i = r.error.issues[0]!;
+    const field = ['settings', ...i.path.map(String)].join('.');
+    fail('E_SETTINGS', field, i.message, undefined, 'see `factor-triage study --help` for the settings');
+  }
+  const s = r.data as StudySettings;
+  if (s.firstPaths > s.paths)
+    fail('E_SETTINGS', 'settings.firstPaths', `must not exceed settings.paths (${s.paths})`, s.firstPaths);
+  if (s.firstPaths % s.batchSize !== 0 || s.paths % s.batchSize !== 0)
+    fail(
+      'E_SETTINGS',
+      'settings.batchSize',
+      `must divide firstPaths (${s.firstPaths}) and paths (${s.paths})`,
+      s.batchSize,
+    );
+  return s;
+}
+
+function toStats(s: MomentSums): ColumnStats {
+  const k = s.mean.length;
+  const cov: number[][] = [];
+  for (let i = 0; i < k; i++) {
+    const row: number[] = [];
+    for (let j = 0; j < k; j++) row.push(s.count > 1 ? s.comoment[i * k + j]! / (s.count - 1) : 0);
+    cov.push(row);
+  }
+  return { n: s.count, mean: Array.from(s.mean), cov };
+}
+
+function weights(k: number, w: Record<number, number>): Record<number, number> {
+  const out: Record<number, number> = {};
+  for (const [i, v] of Object.entries(w)) if (Number(i) < k) out[Number(i)] = (out[Number(i)] ?? 0) + v;
+  return out;
+}
+
+interface Prepared {
+  input: StudyInput;
+  settings: StudySettings;
+  markets: MarketSnapshot[];
+  marketWarnings: string[];
+  compiled: CompiledDeal;
+  analysis: DealAnalysis;
+  candidates: FactorId[];
+  required: FactorId[];
+  rules: ReturnType<typeof applyRules>;
+  tau: number;
+}
+
+function prepare(input: StudyInput): Prepared {
+  if (!input || typeof input !== 'object')
+    fail('E_INPUT', 'input', 'must be an object with deal, markets and settings', input);
+  const settings = checkSettings(input.settings);
+  if (!Array.isArray(input.markets) || input.markets.length === 0)
+    fail('E_NO_MARKET', 'markets', 'must hold at least one market snapshot', input.markets);
+  const marketWarnings: string[] = [];
+  const markets = input.markets.map((m, i) => {
+    try {
+      const r = parseSnapshot(m);
+      marketWarnings.push(...r.warnings.map((w) => `market ${i}: ${w.message}`));
+      return r.snapshot;
+    } catch (e) {
+      if (e instanceof EngineError) throw new EngineError(e.code, `markets[${i}]: ${e.message}`, e.issues);
+      throw e;
+    }
+  });
+  const compiled = compileDeal(input.deal);
+  const analysis = analyseDeal(compiled);
+  for (const e of analysis.equities)
+    if (!markets[0]!.equities[e.marketName])
+      fail(
+        'E_UNKNOWN_UNDERLYING',
+        `deal.underlyings.${e.id}`,
+        `must name an equity of the market (it has ${Object.keys(markets[0]!.equities).join(', ') || 'none'})`,
+        e.marketName,
+        'add it to the market snapshot or correct the deal',
+      );
+  if (markets[0]!.domestic !== analysis.currency && !markets[0]!.curves[analysis.currency])
+    fail(
+      'E_NO_CURVE',
+      `market.curves.${analysis.currency}`,
+      'must give the curve of the deal currency',
+      undefined,
+    );
+  const rules = applyRules(analysis, settings.rules);
+  const candidates = candidateFactors(rules);
+  const required = requiredFactors(rules);
+  for (const f of settings.extraCandidates) {
+    const st = rules.factors.find((x) => x.factor === f)!;
+    if (st.status === 'notNeeded' && !candidates.includes(f)) {
+      if (f === 'foreignRate' && analysis.currencies.length < 2) continue;
+      if (f === 'stochVol' && analysis.equities.length === 0) continue;
+      candidates.push(f);
+    }
+  }
+  const order: FactorId[] = ['stochVol', 'domesticRate', 'foreignRate'];
+  candidates.sort((a, b) => order.indexOf(a) - order.indexOf(b));
+  const tau = thresholdAmount(settings.threshold, compiled.notional);
+  return { input, settings, markets, marketWarnings, compiled, analysis, candidates, required, rules, tau };
+}
+
+/** Vanillas repriced by Monte Carlo for the evidence of fairness (3 strikes per calibration expiry on the grid). */
+function fairnessVanillas(
+  snapshot: MarketSnapshot,
+  analysis: DealAnalysis,
+): (FairnessVanilla & { market: number; vol: number })[] {
+  const out: (FairnessVanilla & { market: number; vol: number })[] = [];
+  for (const e of analysis.equities) {
+    const q = snapshot.equities[e.marketName]!;
+    const curve = makeCurve(snapshot.curves[q.currency]!, `market.curves.${q.currency}`);
+    const exps = calibrationExpiries(q.vols.expiries, analysis.lastTime).filter(
+      (t) => t <= analysis.lastTime + 1e-9,
+    );
+    for (const T of exps.slice(-3)) {
+      const F = equityForward(q, curve, T);
+      for (const m of [0.9, 1, 1.1]) {
+        const K = F * m;
+        const vol = gridVolAt(q, curve, T, K);
+        const isCall = K >= F;
+        const r = -Math.log(curve.df(T)) / T;
+        const qq = r - Math.log(F / q.spot) / T;
+        const market = bsPrice({ type: isCall ? 'call' : 'put', S: q.spot, K, T, r, q: qq, vol });
+        out.push({ equity: e.marketName, expiry: T, strike: K, isCall, market, vol });
+      }
+    }
+  }
+  return out;
+}
+
+function maxAbsVolErr(l: CalibratedLadder, mask: number): number {
+  return l.variants.find((v) => v.mask === mask)?.calibration.maxAbsVolError ?? 0;
+}
+
+/** Runs a study. */
+export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): Promise<SavedStudy> {
+  const tStart = now();
+  const P = prepare(input);
+  const { settings: S, markets, compiled, analysis, candidates, required, tau } = P;
+  const snap = markets[0]!;
+  const warnings: string[] = [...P.marketWarnings];
+  const limitations: string[] = [];
+  const workers = Math.max(1, Math.floor(opts.workers ?? 1));
+  const progress = (fraction: number, stage: string, detail?: string) =>
+    opts.onProgress?.({ fraction: Math.min(1, Math.max(0, fraction)), stage, ...(detail ? { detail } : {}) });
+  const checkAbort = () => {
+    if (opts.signal?.aborted) throw new EngineError('E_CANCELLED', 'the study was cancelled');
+  };
+  const k = candidates.length;
+  const full = (1 << k) - 1;
+  const aux = Math.max(S.batchSize, Math.round((S.paths * S.auxiliaryFraction) / S.batchSize) * S.batchSize);
+
+  // --- calibration
+  progress(0.01, 'calibration', 'fitting every variant to the same instruments');
+  const tCal = now();
+  const ladderReq = {
+    snapshot: snap,
+    analysis,
+    candidates,
+    required,
+    mode: S.calibration,
+    scheme: S.scheme,
+    bsStrikes: S.calibrationStrikes,
+  } as const;
+  const ladder = calibrateLadder(ladderReq);
+  warnings.push(...ladder.warnings);
+  const variants = ladder.variants.map((v) => v.spec);
+  let vegaLadders: { up: CalibratedLadder; down: CalibratedLadder } | null = null;
+  if (S.greeks && analysis.equities.length > 0) {
+    const warm = ladder.heston;
+    vegaLadders = {
+      up: calibrateLadder({ ...ladderReq, volShift: S.greeks.volBump, warmStart: warm }),
+      down: calibrateLadder({ ...ladderReq, volShift: -S.greeks.volBump, warmStart: warm }),
+    };
+  }
+  const calSeconds = (now() - tCal) / 1000;
+  checkAbort();
+
+  const vanillas = fairnessVanillas(snap, analysis);
+  const eventTimes = [...new Set([...compiled.gridTimes, ...vanillas.map((v) => v.expiry)])].sort(
+    (a, b) => a - b,
+  );
+  if (eventTimes.length === 0)
+    fail('E_NO_DATES', 'deal.schedules', 'must give at least one date after the valuation date', undefined);
+  const maxStep = Math.min(S.maxStep, Math.max(...eventTimes));
+  const makeExec = opts.makeExecutor ?? (() => inProcessExecutor());
+  const executor = makeExec(workers);
+  let simSeconds = 0;
+  try {
+    // --- step halving (in process, same random numbers on both grids)
+    progress(0.05, 'step halving', `${aux} paths on the study grid and on the halved grid`);
+    const sh = await runStepHalving({
+      variants,
+      deal: compiled,
+      eventTimes,
+      maxStep,
+      seed: S.seed,
+      paths: aux,
+      batchSize: S.batchSize,
+      signal: opts.signal,
+      onBatch: (d, t) => progress(0.05 + 0.1 * (d / t), 'step halving'),
+    });
+    const shStats = toStats(sh.sums);
+    const V = variants.length;
+    const stepChange = (w: Record<number, number>): ValueSe => {
+      const c: Record<number, number> = {};
+      const f: Record<number, number> = {};
+      for (const [i, x] of Object.entries(w)) {
+        c[Number(i)] = -x;
+        f[Number(i) + V] = x;
+      }
+      return combination(shStats, { ...c, ...f });
+    };
+    const looFor = (fi: number) => full ^ (1 << fi);
+    // Budget part: the change of Δ on the halved grid beyond two of its own standard errors (what the paired noise
+    // of the check does not explain); the raw change and its SE are kept for the report.
+    const stepBudget = (w: Record<number, number>): number => {
+      const d = stepChange(w);
+      return Math.max(0, Math.abs(d.value) - 2 * d.se);
+    };
+    const stepHalving: Record<string, number> = {};
+    const stepHalvingRaw: Record<string, ValueSe> = {};
+    candidates.forEach((f, fi) => {
+      stepHalving[f] = stepBudget({ [full]: 1, [looFor(fi)]: -1 });
+      stepHalvingRaw[f] = stepChange({ [full]: 1, [looFor(fi)]: -1 });
+    });
+
+    // --- scenarios of the main run
+    const dom = analysis.currency;
+    const scenarios: PathShift[] = [{}];
+    const eqNames = analysis.equities.map((e) => e.marketName);
+    if (S.greeks) {
+      const up: Record<string, number> = {};
+      const dn: Record<string, number> = {};
+      for (const n of eqNames) {
+        up[n] = 1 + S.greeks.spotBump;
+        dn[n] = 1 - S.greeks.spotBump;
+      }
+      if (eqNames.length) scenarios.push({ spotScale: up }, { spotScale: dn });
+      scenarios.push(
+        { rateShift: { [dom]: S.greeks.rateBump } },
+        { rateShift: { [dom]: -S.greeks.rateBump } },
+      );
+    }
+    const nSc = scenarios.length;
+    const col = (mask: number, sc = 0) => mask * nSc + sc;
+    const payoff = { factory: studyDealFactoryUrl(), description: { deals: [compiled] } };
+
+    // --- vega run (recalibrated variants, same grid and seed → same paths)
+    let vegaStats: ColumnStats | null = null;
+    if (vegaLadders) {
+      progress(0.16, 'vega', 'recalibrated variants ±vol bump on the same paths');
+      const spec: RunSpec = {
+        variants: [
+          ...vegaLadders.up.variants.map((v) => ({ ...v.spec, id: `${v.spec.id}/vol+` })),
+          ...vegaLadders.down.variants.map((v) => ({ ...v.spec, id: `${v.spec.id}/vol-` })),
+        ],
+        payoff,
+        grid: { eventTimes, maxStep },
+        seed: S.seed,
+        batchSize: S.batchSize,
+        maxPaths: S.paths,
+      };
+      const r = await runInLooks({
+        spec,
+        executor,
+        lookPaths: [S.paths],
+        signal: opts.signal,
+        onBatch: (d, t) => progress(0.16 + 0.14 * (d / t), 'vega'),
+      });
+      simSeconds += r.seconds;
+      vegaStats = toStats(r.looks[0]!);
+    }
+
+    // --- main run in looks
+    const schedule = lookSchedule({
+      firstPaths: S.firstPaths,
+      finalPaths: S.paths,
+      alpha: S.alpha,
+      spending: S.spending,
+    });
+    const mainSpec: RunSpec = {
+      variants,
+      scenarios,
+      payoff,
+      grid: { eventTimes, maxStep },
+      seed: S.seed,
+      batchSize: S.batchSize,
+      maxPaths: S.paths,
+    };
+    progress(0.3, 'pricing', `${variants.length} variants × ${nSc} scenarios`);
+    const main = await runInLooks({
+      spec: mainSpec,
+      executor,
+      lookPaths: schedule.map((l) => l.paths),
+      signal: opts.signal,
+      onBatch: (d, t) => progress(0.3 + 0.4 * (d / t), 'pricing', `batch ${d}/${t}`),
+    });
+    simSeconds += main.seconds;
+    warnings.push(...main.warnings.map((w) => w.message));
+    const lookStats = main.looks.map(toStats);
+    const final = lookStats[lookStats.length - 1]!;
+    const K = final.mean.length;
+
+    // greeks of each ladder variant
+    const h = S.greeks;
+    const greekW = {
+      delta: (m: number) =>
+        h && eqNames.length
+          ? weights(K, { [col(m, 1)]: 0.01 / (2 * h.spotBump), [col(m, 2)]: -0.01 / (2 * h.spotBump) })
+          : null,
+      rho: (m: number) => {
+        if (!h) return null;
+        const o = eqNames.length ? 3 : 1;
+        return weights(K, {
+          [col(m, o)]: 1e-4 / (2 * h.rateBump),
+          [col(m, o + 1)]: -1e-4 / (2 * h.rateBump),
+        });
+      },
+    };
+    const vegaOf = (m: number): Record<number, number> | null =>
+      vegaStats && h ? { [m]: 0.01 / (2 * h.volBump), [m + variants.length]: -0.01 / (2 * h.volBump) } : null;
+    const calBudget = (a: number, b: number): number => {
+      const vw = vegaOf(full);
+      if (!vw || !vegaStats) return 0;
+      const vegaPerUnit = Math.abs(combination(vegaStats, vw).value) * 100;
+      return vegaPerUnit * (maxAbsVolErr(ladder, a) + maxAbsVolErr(ladder, b));
+    };
+    if (!vegaStats)
+      limitations.push(
+        'The error budget has no calibration-residual part: hedge ratios (vega) were not computed.',
+      );
+    const exerciseGap: number | null = null;
+    if (analysis.exercise.present)
+      limitations.push(
+        'Exercise rights are not priced: prices are those of the deal without its early-exercise right, and the error budget has no exercise-bound gap (lower/upper bound pair not computed).',
+      );
+
+    const budgetFor = (fi: number): ErrorBudget => ({
+      stepHalving: stepHalving[candidates[fi]!]!,
+      calibration: calBudget(full, looFor(fi)),
+      exerciseGap,
+    });
+    const estimatesAt = (st: ColumnStats): FactorEstimate[] =>
+      candidates.map((f, fi) => {
+        const d = combination(st, { [col(full)]: 1, [col(looFor(fi))]: -1 });
+        return { factor: f, delta: d.value, se: d.se, budget: budgetFor(fi) };
+      });
+    const seq = k > 0 ? decideSequential({ looks: lookStats.map(estimatesAt), schedule, tau }) : [];
+
+    // verdicts
+    const verdicts: FactorVerdict[] = P.rules.factors.map((r) => {
+      const idx = candidates.indexOf(r.factor);
+      if (idx >= 0) {
+        const d = seq[idx]!;
+        const reason =
+          d.verdict === 'keep'
+            ? `|Δ| clears τ by more than z·SE + b at ${schedule[d.decidedAtLook!]!.paths} paths`
+            : d.verdict === 'drop'
+              ? `|Δ| + z·SE + b stays below τ at ${schedule[d.decidedAtLook!]!.paths} paths`
+              : 'the interval Δ ± (z·SE + b) still straddles τ at the final path count';
+        return {
+          factor: r.factor,
+          status: r.status,
+          verdict: d.verdict,
+          decision: d.at,
+          decidedAtLook: d.decidedAtLook,
+          reason: `${reason}; rules: ${r.reason}`,
+        };
+      }
+      return {
+        factor: r.factor,
+        status: r.status,
+        verdict: r.status === 'required' ? 'required' : 'notNeeded',
+        decision: null,
+        decidedAtLook: null,
+        reason: r.reason,
+      };
+    });
+
+    // recommended model and joint test
+    const keepMask = candidates.reduce((m, f, fi) => (seq[fi]!.verdict !== 'drop' ? m | (1 << fi) : m), 0);
+    const dropped = candidates.filter((_, fi) => seq[fi]!.verdict === 'drop');
+    const recFactors = [...new Set([...required, ...candidates.filter((_, fi) => keepMask & (1 << fi))])];
+    const recVariant = ladder.variants.find((v) => v.mask === keepMask)!;
+    const jd = combination(final, { [col(keepMask)]: 1, [col(full)]: -1 });
+    const joint =
+      k > 0
+        ? jointTest({
+            dropped,
+            difference: jd.value,
+            se: jd.se,
+            budget: stepBudget({ [keepMask]: 1, [full]: -1 }) + calBudget(keepMask, full),
+            tau,
+            alpha: S.alpha,
+          })
+        : null;
+
+    // Shapley attribution over the ladder
+    const shap = k > 0 ? shapley({ factors: candidates, stats: final, column: (m) => col(m) }) : [];
+
+    // hedge ratios and their tests
+    let greeks: StudyResults['greeks'] = null;
+    const greekVerdicts: GreekVerdict[] = [];
+    if (h) {
+      greeks = ladder.variants.map((v) => {
+        const dw = greekW.delta(v.mask);
+        const rw = greekW.rho(v.mask)!;
+        const vw = vegaOf(v.mask);
+        return {
+          variant: v.id,
+          delta: dw ? combination(final, dw) : { value: 0, se: 0 },
+          vega: vw && vegaStats ? combination(vegaStats, vw) : null,
+          rho: combination(final, rw),
+        };
+      });
+      const diffW = (f: (m: number) => Record<number, number> | null, fi: number) => {
+        const a = f(full);
+        const b = f(looFor(fi));
+        if (!a || !b) return null;
+        const w: Record<number, number> = { ...a };
+        for (const [i, x] of Object.entries(b)) w[Number(i)] = (w[Number(i)] ?? 0) - x;
+        return w;
+      };
+      const tests: {
+        greek: GreekVerdict['greek'];
+        thr: number;
+        stats: ColumnStats | null;
+        f: (m: number) => Record<number, number> | null;
+      }[] = [
+        { greek: 'delta', thr: h.deltaThreshold, stats: final, f: greekW.delta },
+        { greek: 'vega', thr: h.vegaThreshold, stats: vegaStats, f: vegaOf },
+        { greek: 'rho', thr: h.rhoThreshold, stats: final, f: greekW.rho },
+      ];
+      for (const t of tests) {
+        if (!t.stats || k === 0) continue;
+        const est: FactorEstimate[] = [];
+        candidates.forEach((f, fi) => {
+          const w = diffW(t.f, fi);
+          if (!w) return;
+          const e = combination(t.stats!, w);
+          est.push({
+            factor: f,
+            delta: e.value,
+            se: e.se,
+            budget: { stepHalving: 0, calibration: 0, exerciseGap: null },
+          });
+        });
+        if (est.length === 0) continue;
+        decideLook(est, t.thr, S.alpha).forEach((d) =>
+          greekVerdicts.push({ greek: t.greek, factor: d.factor as FactorId, threshold: t.thr, decision: d }),
+        );
+      }
+      limitations.push(
+        'Hedge-ratio tests use one look at level α per hedge ratio and no error budget (step halving and calibration residuals are budgeted for the price only).',
+      );
+    }
+
+    // evidence of fairness: every ladder variant reprices its vanillas on the study's paths
+    if (vanillas.length) {
+      progress(0.72, 'fairness', `${vanillas.length} vanillas per variant on the study's paths`);
+      const spec: RunSpec = {
+        variants,
+        payoff: { factory: fairnessPayoffFactoryUrl(), description: { vanillas, gridTimes: eventTimes } },
+        grid: { eventTimes, maxStep },
+        seed: S.seed,
+        batchSize: S.batchSize,
+        maxPaths: aux,
+      };
+      const r = await runInLooks({ spec, executor, lookPaths: [aux], signal: opts.signal });
+      simSeconds += r.seconds;
+      const st = columnStats(r.looks[0]!);
+      ladder.variants.forEach((v, vi) => {
+        vanillas.forEach((q, qi) => {
+          const c = vi * vanillas.length + qi;
+          const mc = st.mean(c);
+          const eqq = snap.equities[q.equity]!;
+          const curve = makeCurve(snap.curves[eqq.currency]!, 'curve');
+          const r0 = -Math.log(curve.df(q.expiry)) / q.expiry;
+          const F = equityForward(eqq, curve, q.expiry);
+          let iv = q.vol;
+          try {
+            iv = bsImpliedVol({
+              type: q.isCall ? 'call' : 'put',
+              price: mc,
+              S: eqq.spot,
+              K: q.strike,
+              T: q.expiry,
+              r: r0,
+              q: r0 - Math.log(F / eqq.spot) / q.expiry,
+            });
+          } catch {
+            iv = q.vol;
+          }
+          v.calibration.fit.push({
+            instrument: `${q.equity} ${q.isCall ? 'call' : 'put'} K=${Math.round(q.strike * 100) / 100} T=${q.expiry} (Monte Carlo reprice)`,
+            marketVol: q.vol,
+            modelVol: Number.isFinite(iv) ? iv : q.vol,
+            priceError: mc - q.market,
+            mcError: { value: mc - q.market, se: st.se(c) },
+          });
+        });
+      });
+    }
+
+    // sweeps over unquoted correlations
+    const sweeps: Sweep[] = [];
+    if (S.sweeps && snap.correlationRanges) {
+      const rich = variants[full]!;
+      const active = new Set([
+        ...rich.equities.map((e) => `eq:${e.name}`),
+        ...rich.equities.filter((e) => e.dynamics.kind === 'heston').map((e) => `var:${e.name}`),
+        ...Object.keys(rich.rates)
+          .filter((c) => rich.rates[c]!.hw)
+          .map((c) => `rate:${c}`),
+        ...rich.fx.map((f) => `fx:${f.name}`),
+      ]);
+      const isVarRate = (p: string) => {
+        const [a, b] = p.split('|') as [string, string];
+        return (
+          (a.startsWith('var:') && b.startsWith('rate:')) || (b.startsWith('var:') && a.startsWith('rate:'))
+        );
+      };
+      const pairs = Object.entries(snap.correlationRanges).filter(
+        ([p]) => p.split('|').every((d) => active.has(d)) && !(S.scheme === 'qe' && isVarRate(p)),
+      );
+      const skipped = Object.keys(snap.correlationRanges).filter(
+        (p) => p.split('|').every((d) => active.has(d)) && S.scheme === 'qe' && isVarRate(p),
+      );
+      if (skipped.length)
+        limitations.push(
+          `Not swept: ${skipped.join(', ')} — a variance–rate correlation needs the Euler scheme (QE assumes it is zero).`,
+        );
+      pairs.forEach(([pair, range], pi) => {
+        void pi;
+        const [a, b] = pair.split('|') as [string, string];
+        const ia = snap.correlation.names.indexOf(a);
+        const ib = snap.correlation.names.indexOf(b);
+        const base = ia >= 0 && ib >= 0 ? snap.correlation.matrix[ia]![ib]! : 0;
+        sweeps.push({
+          pair,
+          range,
+          base,
+          points: [],
+          band: 0,
+          materialSomewhere: [],
+          priceMovesMaterially: false,
+        });
+      });
+      let done = 0;
+      for (const sw of sweeps) {
+        const [a, b] = sw.pair.split('|') as [string, string];
+        const n = S.sweeps.points;
+        for (let i = 0; i < n; i++) {
+          checkAbort();
+          const rho = sw.range[0] + ((sw.range[1] - sw.range[0]) * i) / (n - 1);
+          const l = calibrateLadder({ ...ladderReq, correlationOverride: { [`${a}|${b}`]: rho } });
+          const m = l.variants[full]!.spec.correlation;
+          const used = m.names.filter((x) => active.has(x));
+          const sub = used.map((x) => used.map((y) => m.matrix[m.names.indexOf(x)]![m.names.indexOf(y)]!));
+          if (!isPsd(sub)) {
+            warnings.push(
+              `sweep ${sw.pair} = ${rho.toFixed(3)}: the correlation matrix is not positive semi-definite; point skipped`,
+            );
+            continue;
+          }
+          const spec: RunSpec = {
+            variants: l.variants.map((v) => v.spec),
+            payoff,
+            grid: { eventTimes, maxStep },
+            seed: S.seed,
+            batchSize: S.batchSize,
+            maxPaths: aux,
+          };
+          const r = await runInLooks({ spec, executor, lookPaths: [aux], signal: opts.signal });
+          simSeconds += r.seconds;
+          const st = toStats(r.looks[0]!);
+          const deltas: Record<string, ValueSe> = {};
+          candidates.forEach((f, fi) => {
+            deltas[f] = combination(st, { [full]: 1, [looFor(fi)]: -1 });
+          });
+          sw.points.push({ rho, price: combination(st, { [full]: 1 }), deltas });
+          done++;
+          progress(
+            0.75 + (0.15 * done) / Math.max(1, sweeps.length * n),
+            'sweeps',
+            `${sw.pair} = ${rho.toFixed(2)}`,
+          );
+        }
+        const prices = sw.points.map((p) => p.price.value);
+        sw.band = prices.length ? Math.max(...prices) - Math.min(...prices) : 0;
+        const z = 1.959963984540054;
+        sw.priceMovesMaterially = sw.band > tau;
+        sw.materialSomewhere = candidates.filter((f) =>
+          sw.points.some((p) => Math.abs(p.deltas[f]!.value) - z * p.deltas[f]!.se > tau),
+        );
+      }
+      if (sweeps.length)
+        limitations.push(
+          `Correlation sweeps run on ${aux} paths with the variants refitted at each point; a point whose matrix is not positive semi-definite is skipped, never repaired.`,
+        );
+    }
+
+    // other snapshots: parameters and verdicts
+    const stability: StudyResults['stability'] = [];
+    const paramsOf = (l: CalibratedLadder): Record<string, Record<string, number>> => {
+      const out: Record<string, Record<string, number>> = {};
+      for (const [n, p] of Object.entries(l.heston)) out[`heston ${n}`] = { ...p };
+      for (const [c, x] of Object.entries(l.hullWhite))
+        out[`hw ${c}`] = {
+          a: x.params.a,
+          sigma: typeof x.params.sigma === 'number' ? x.params.sigma : x.params.sigma[0]!,
+        };
+      return out;
+    };
+    stability.push({
+      date: snap.date,
+      verdicts: Object.fromEntries(verdicts.map((v) => [v.factor, v.verdict])),
+      params: paramsOf(ladder),
+    });
+    for (let mi = 1; mi < markets.length; mi++) {
+      checkAbort();
+      const m = markets[mi]!;
+      progress(0.9 + (0.09 * mi) / markets.length, 'stability', m.date);
+      const l = calibrateLadder({ ...ladderReq, snapshot: m });
+      const spec: RunSpec = {
+        variants: l.variants.map((v) => v.spec),
+        payoff,
+        grid: { eventTimes, maxStep },
+        seed: S.seed,
+        batchSize: S.batchSize,
+        maxPaths: aux,
+      };
+      const r = await runInLooks({ spec, executor, lookPaths: [aux], signal: opts.signal });
+      simSeconds += r.seconds;
+      const st = toStats(r.looks[0]!);
+      const est = candidates.map((f, fi) => {
+        const d = combination(st, { [full]: 1, [looFor(fi)]: -1 });
+        return { factor: f, delta: d.value, se: d.se, budget: budgetFor(fi) };
+      });
+      const rows = k > 0 ? decideLook(est, tau, S.alpha) : [];
+      const vmap: Record<string, string> = {};
+      for (const v of verdicts) vmap[v.factor] = v.verdict;
+      for (const r2 of rows) vmap[r2.factor] = r2.verdict;
+      stability.push({ date: m.date, verdicts: vmap, params: paramsOf(l) });
+    }
+    if (markets.length > 1)
+      limitations.push(
+        `Other snapshots are judged at one look on ${aux} paths, with the pricing snapshot's error budget.`,
+      );
+
+    // model-risk range: variants that fit their instruments within 1 vol point
+    const fits = ladder.variants.filter((v) => v.calibration.rmseVol <= 0.01);
+    const fp = fits.map((v) => final.mean[col(v.mask)]!);
+    const modelRisk = fp.length
+      ? {
+          min: Math.min(...fp),
+          max: Math.max(...fp),
+          spread: Math.max(...fp) - Math.min(...fp),
+          variants: fits.map((v) => v.id),
+        }
+      : { min: 0, max: 0, spread: 0, variants: [] };
+
+    const convergence = lookStats.map((st, j) => ({
+      paths: schedule[j]!.paths,
+      deltas: Object.fromEntries(
+        candidates.map((f, fi) => {
+          const d = combination(st, { [col(full)]: 1, [col(looFor(fi))]: -1 });
+          return [f, { value: d.value, se: d.se }];
+        }),
+      ),
+      richest: combination(st, { [col(full)]: 1 }),
+    }));
+
+    // limitations the user must know
+    if (ladder.variants.some((v) => v.calibration.characteristicFunction === 'approximate'))
+      limitations.push(
+        'Heston under stochastic rates is refitted with the H1-HW approximation (Grzelak & Oosterlee 2011), not the full model; its vanilla fit on the study paths is shown above.',
+      );
+    if (S.scheme === 'qe')
+      limitations.push('Heston paths use the QE scheme (Andersen 2008) with ρ(variance, rate) = 0.');
+    else limitations.push('Heston paths use full-truncation Euler (the labelled alternative to QE).');
+    for (const v of ladder.variants)
+      for (const [e, f] of Object.entries(v.calibration.feller))
+        if (f < 1)
+          limitations.push(
+            `Feller condition fails for ${e} in ${v.label} (2κθ/σ² = ${f.toFixed(3)}): variance can touch zero.`,
+          );
+    if (S.localVol)
+      limitations.push(
+        'Local-volatility diagnostic not available in this build: no Dupire surface is calibrated yet, so the split of the stochastic-vol effect into smile and dynamics is not shown.',
+      );
+    const assumed = Object.entries(snap.correlationRanges ?? {}).map(([p, r]) => {
+      const [a, b] = p.split('|') as [string, string];
+      const ia = snap.correlation.names.indexOf(a);
+      const ib = snap.correlation.names.indexOf(b);
+      return `${p} = ${ia >= 0 && ib >= 0 ? snap.correlation.matrix[ia]![ib]! : 0} (plausible ${r[0]} … ${r[1]})`;
+    });
+    if (assumed.length) limitations.push(`Unquoted correlations assumed: ${assumed.join('; ')}.`);
+    if (Object.values(snap.equities).some((e) => e.dividends?.length))
+      limitations.push(
+        'Discrete cash dividends enter calibration forwards but the simulated equities carry only the dividend yield.',
+      );
+    if (S.calibration === 'naive')
+      limitations.push(
+        'Naive ladder: factors were added without refitting, so Δ also measures miscalibration.',
+      );
+    limitations.push(
+      "This study informs a pricing-model decision; it does not replace model validation. Model choice remains subject to the firm's model-risk policy and independent review.",
+    );
+
+    const results: StudyResults = {
+      looks: schedule,
+      prices: ladder.variants.map((v) => combination(final, { [col(v.mask)]: 1 })),
+      convergence,
+      tau,
+      joint,
+      shapley: shap.map((x) => ({ factor: x.factor as FactorId, value: x.value, se: x.se })),
+      greeks,
+      greekVerdicts,
+      sweeps,
+      localVol: null,
+      modelRisk,
+      stepHalving,
+      stepHalvingChange: stepHalvingRaw,
+      stability,
+    };
+    const recSummary = recFactors.length
+      ? recVariant.label
+      : `${recVariant.label} (no stochastic factor beyond the base)`;
+    const totalSeconds = (now() - tStart) / 1000;
+    const payShare = sh.payoffSeconds / Math.max(1e-9, sh.payoffSeconds + sh.pathSeconds);
+    const perVariant: Record<string, number> = {};
+    // Monte Carlo time per variant: the run's simulation time split by each variant's measured share of path
+    // generation in the in-process step-halving run (an estimate; batches of all variants run together).
+    const vs = sh.variantSeconds;
+    const vsum = vs.reduce((t, x) => t + x, 0) || 1;
+    ladder.variants.forEach((v, vi) => {
+      perVariant[v.id] = simSeconds * (1 - payShare) * (vs[vi]! / vsum);
+    });
+    progress(1, 'done');
+    return sealStudy({
+      format: STUDY_FORMAT,
+      tool: { name: TOOL_NAME, version: TOOL_VERSION },
+      input: { deal: P.input.deal, markets: P.input.markets, settings: S },
+      analysis,
+      rules: { factors: P.rules.factors, notes: P.rules.notes },
+      candidates,
+      required,
+      ladder: ladder.variants,
+      results,
+      verdicts,
+      recommended: { factors: recFactors, variant: recVariant.id, summary: recSummary },
+      warnings,
+      limitations,
+      timings: {
+        total: totalSeconds,
+        calibration: calSeconds,
+        simulation: simSeconds * (1 - payShare),
+        payoff: simSeconds * payShare,
+        perVariant,
+        workers,
+      },
+    });
+  } finally {
+    await executor.close();
+  }
+}
+
+/** Display name of a factor. */
+export function factorLabel(f: FactorId): string {
+  return FACTOR_LABELS[f];
+}
+
+export type { VariantSpec };
