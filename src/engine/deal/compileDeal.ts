@@ -132,8 +132,14 @@ function sourceOf(deal: DealInput, id: string): LevelSource {
 /** Lowers a checked expression evaluated at `times` to a program. */
 function lower(L: Lowering, tree: CheckedExpr, field: string, text: string, times: number[]): Program {
   const nodes: ProgramNode[] = [];
+  // Identical nodes (same operation on the same operands) are computed once: hash-consing on the plain node.
+  const seen = new Map<string, number>();
   const push = (n: ProgramNode): number => {
+    const key = JSON.stringify(n);
+    const hit = seen.get(key);
+    if (hit !== undefined) return hit;
     nodes.push(n);
+    seen.set(key, nodes.length - 1);
     return nodes.length - 1;
   };
   const isConst = (e: CheckedExpr): boolean =>

@@ -302,9 +302,16 @@ class Runner {
     this.vals = new Array<Float64Array>(program.nodes.length);
   }
   run(env: Env): Float64Array {
-    if (this.bufs.length === 0 || this.bufs[0]!.length < env.n)
+    const nodes = this.program.nodes;
+    if (this.bufs.length === 0 || this.bufs[0]!.length < env.n) {
       this.bufs = this.fns.map(() => new Float64Array(env.n));
-    for (let i = 0; i < this.fns.length; i++) this.vals[i] = this.fns[i]!(env, this.vals, this.bufs[i]!);
+      // constants are filled once per buffer size
+      nodes.forEach((node, i) => {
+        if (node.op === 'num') this.vals[i] = this.bufs[i]!.fill(node.value);
+      });
+    }
+    for (let i = 0; i < this.fns.length; i++)
+      if (nodes[i]!.op !== 'num') this.vals[i] = this.fns[i]!(env, this.vals, this.bufs[i]!);
     return this.vals[this.fns.length - 1]!;
   }
 }
@@ -459,6 +466,7 @@ export function makeDealRunner(compiled: CompiledDeal, opts: DealEvaluatorOption
 
     let oi = 0;
     const cash = new Float64Array(n);
+    const setScratch = new Map(events.map((ev, i) => [i, ev.set.map(() => new Float64Array(n))]));
     for (let k = 0; k <= lastStep && k < K; k++) {
       for (let r = 0; r < compiled.running.length; r++) {
         const steps = runSteps[r];
@@ -498,7 +506,9 @@ export function makeDealRunner(compiled: CompiledDeal, opts: DealEvaluatorOption
             if (col) flows.push({ time: o.time, event: ev.e.label, values: col });
           }
           if (ev.set.length > 0) {
-            const next = ev.set.map(({ r }) => Float64Array.from(r.run(env).subarray(0, n)));
+            // all updates read the state as it was before the event: compute every value, then assign
+            const next = setScratch.get(o.idx)!;
+            ev.set.forEach(({ r }, j) => next[j]!.set(r.run(env).subarray(0, n)));
             ev.set.forEach(({ name }, j) => {
               const s = env.state.get(name)!;
               const v = next[j]!;
