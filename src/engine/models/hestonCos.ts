@@ -15,7 +15,7 @@
  * closed form (−½ E∫v dt), c₂ and c₄ from the cumulant expansion of Re ln φ(u) = −c₂u²/2 + c₄u⁴/24 − …,
  * read off at two small u by Richardson extrapolation (the exponent C + D v₀ is ln φ exactly, no branch issue).
  * Number of terms N: the series is summed until the size of a term's contribution bound 2(F + K_max)|φ(u_k)|/(kπ)
- * stays below tol/20 for 4 consecutive k (N ≤ 2¹⁶), so N adapts to the maturity (short T has a wide φ).
+ * stays below tol/5 for 4 consecutive k (N ≤ 2¹⁶), so N adapts to the maturity (short T has a wide φ).
  */
 import { fail, requirePositive } from '../errors.ts';
 import type { HestonParams } from '../simulation/types.ts';
@@ -137,7 +137,7 @@ function expand(
   let n = 0;
   let quiet = 0;
   const bound = (2 * (F + kMax)) / Math.PI;
-  const stop = tol / 20;
+  const stop = tol / 5;
   while (n < nMax) {
     const m0 = n;
     const m1 = Math.min(nMax, n + chunk);
