@@ -65,7 +65,10 @@ export function designColumns(
   });
 }
 
-/** Fitted continuation value (time-t_j money) of every path at sample date `j` under `date`. */
+/**
+ * Fitted continuation value (time-t_j money) of every path at sample date `j` under `date`. One pass over the
+ * paths with no allocation per path or term (the pricing and dual passes call this for every date and inner batch).
+ */
 export function continuationValues(
   basis: BasisSpec,
   date: DatePolicy,
@@ -73,14 +76,52 @@ export function continuationValues(
   j: number,
   exercise: Float64Array,
 ): Float64Array {
-  const out = new Float64Array(sample.nPaths);
+  const P = sample.nPaths;
+  const out = new Float64Array(P);
   if (date.fit === 'none') return out;
-  const z = standardState(sample, j, date.mean, date.scale);
-  const cols = designColumns(basis, date.activeTerms, z, exercise, date.exerciseMean, date.exerciseScale);
-  cols.forEach((col, i) => {
-    const b = date.coefficients[i]!;
-    for (let p = 0; p < out.length; p++) out[p] = out[p]! + b * col[p]!;
+  const nState = sample.nState;
+  const nTerms = basis.terms.length;
+  // Flattened factor lists: for active term i, variables vars[off_i .. off_{i+1}) each raised to pows[·].
+  const offs: number[] = [0];
+  const vars: number[] = [];
+  const pows: number[] = [];
+  let evTerm = -1;
+  date.activeTerms.forEach((t, i) => {
+    if (t >= nTerms) evTerm = i;
+    else
+      basis.terms[t]!.exponents.forEach((e, v) => {
+        if (e > 0) {
+          vars.push(v);
+          pows.push(e);
+        }
+      });
+    offs.push(vars.length);
   });
+  const coef = date.coefficients;
+  const nAct = coef.length;
+  const mean = date.mean;
+  const inv = date.scale.map((s) => (s > 0 ? 1 / s : 0));
+  const evInv = date.exerciseScale > 0 ? 1 / date.exerciseScale : 0;
+  const z = new Float64Array(nState);
+  const base = j * nState * P;
+  for (let p = 0; p < P; p++) {
+    for (let v = 0; v < nState; v++) z[v] = (sample.state[base + v * P + p]! - mean[v]!) * inv[v]!;
+    let c = 0;
+    for (let i = 0; i < nAct; i++) {
+      let f: number;
+      if (i === evTerm) f = (exercise[p]! - date.exerciseMean) * evInv;
+      else {
+        f = 1;
+        for (let q = offs[i]!; q < offs[i + 1]!; q++) {
+          const zv = z[vars[q]!]!;
+          const e = pows[q]!;
+          f *= e === 1 ? zv : e === 2 ? zv * zv : zv * zv * zv;
+        }
+      }
+      c += coef[i]! * f;
+    }
+    out[p] = c;
+  }
   return out;
 }
 
