@@ -270,6 +270,28 @@ function lower(L: Lowering, tree: CheckedExpr, field: string, text: string, time
 }
 
 /**
+ * The names an expression of `deal` may use, for checking one expression on its own (type-as-you-check). Tolerates a
+ * partial deal (missing sections are empty); clashes and reserved names are reported by {@link checkDeal}, not here.
+ */
+export function dealSymbols(deal: Partial<DealInput>): Record<string, SymbolKind> {
+  const symbols = Object.create(null) as Record<string, SymbolKind>;
+  const add = (name: string, kind: SymbolKind) => {
+    if (!RESERVED_NAMES.has(name) && !hasOwn(symbols, name)) symbols[name] = kind;
+  };
+  for (const [id, u] of Object.entries(deal.underlyings ?? {})) add(id, u?.kind === 'fx' ? 'fx' : 'equity');
+  for (const c of deal.rates ?? []) add(c, 'rateCurrency');
+  for (const k of Object.keys(deal.parameters ?? {})) add(k, 'parameter');
+  for (const k of Object.keys(deal.state ?? {})) add(k, 'state');
+  for (const k of Object.keys(deal.schedules ?? {})) add(k, 'schedule');
+  return symbols;
+}
+
+/** The context for checking the expression at `field` of `deal` with `checkExpression`. */
+export function expressionContextOf(deal: Partial<DealInput>, field: string): ExpressionContext {
+  return { field, symbols: { ...dealSymbols(deal) } };
+}
+
+/**
  * Checks a deal file (raw JSON value) completely and compiles it when it is valid. Never throws for bad input:
  * every problem comes back as an issue naming the field (and, for expressions, the character position).
  */

@@ -18,7 +18,14 @@ export {
   type SymbolKind,
   type LanguageFunction,
 } from './checkExpression.ts';
-export { checkDeal, compileDeal, type DealCheck } from './compileDeal.ts';
+export { checkDeal, compileDeal, dealSymbols, expressionContextOf, type DealCheck } from './compileDeal.ts';
+export {
+  createEvaluators,
+  eventTimes,
+  dealPayoffFactoryUrl,
+  DEAL_PAYOFF_FACTORY,
+  type DealPayoffDescription,
+} from './dealPayoffFactory.ts';
 export { analyseDeal } from './analyseDeal.ts';
 export {
   makeDealEvaluator,

@@ -191,3 +191,21 @@ describe('deal files: every problem names its field', () => {
     expect(c.schedules.obs!.map((t) => Math.round(t * 365))).toEqual([28, 59, 89, 120, 150]);
   });
 });
+
+describe('type-as-you-check context', () => {
+  it('expressionContextOf gives the same verdict on one expression as checking the whole deal', async () => {
+    const { expressionContextOf } = await import('../../../src/engine/deal/compileDeal.ts');
+    const { checkExpression } = await import('../../../src/engine/deal/checkExpression.ts');
+    const field = 'deal.events[0].pay.amount';
+    const ok = checkExpression(
+      'c * (1 + missed) + lowest(ALDR, obs)',
+      expressionContextOf(memoryDeal, field),
+    );
+    expect(ok.errors).toEqual([]);
+    const bad = checkExpression('c * strike', expressionContextOf(memoryDeal, field));
+    expect(bad.errors[0]!.code).toBe('E_EXPR_UNKNOWN_NAME');
+    expect(bad.errors[0]!.start).toBe(4);
+    // a partial deal (still being typed) is fine
+    expect(checkExpression('1 + x', expressionContextOf({ parameters: { x: 1 } }, 'f')).errors).toEqual([]);
+  });
+});
