@@ -132,48 +132,46 @@ function expand(
   const fixedN = opts.N;
   const nMax = fixedN ?? 65536;
   const chunk = fixedN ?? 32;
-  let A = new Float64Array(0);
+  let A = new Float64Array(Math.min(nMax, 256));
   let grads: Float64Array[] = [];
   let n = 0;
   let quiet = 0;
   const bound = (2 * (F + kMax)) / Math.PI;
   const stop = tol / 5;
+  const scale = 2 / width;
+  // Scratch buffers reused by every chunk (one allocation per call, not per chunk).
+  const u = new Float64Array(chunk);
+  const eRe = new Float64Array(chunk);
+  const eIm = new Float64Array(chunk);
   while (n < nMax) {
     const m0 = n;
     const m1 = Math.min(nMax, n + chunk);
     const len = m1 - m0;
-    const u = new Float64Array(len);
-    for (let j = 0; j < len; j++) u[j] = ((m0 + j) * Math.PI) / width;
-    const eRe = new Float64Array(len);
-    const eIm = new Float64Array(len);
-    hestonExponentGrid(m.params, m.T, u, eRe, eIm);
-    const Anew = new Float64Array(m1);
-    Anew.set(A);
+    const uc = len === chunk ? u : u.subarray(0, len);
+    for (let j = 0; j < len; j++) uc[j] = ((m0 + j) * Math.PI) / width;
+    hestonExponentGrid(m.params, m.T, uc, eRe, eIm);
+    if (m1 > A.length) {
+      const grown = new Float64Array(Math.min(nMax, Math.max(m1, 2 * A.length)));
+      grown.set(A);
+      A = grown;
+    }
+    let cut = -1;
     for (let j = 0; j < len; j++) {
       const mag = Math.exp(eRe[j]!);
-      const ph = eIm[j]! - u[j]! * a;
-      Anew[m0 + j] = (2 / width) * mag * Math.cos(ph);
+      A[m0 + j] = scale * mag * Math.cos(eIm[j]! - uc[j]! * a);
+      if (fixedN === undefined && cut < 0 && m0 + j > 0) {
+        quiet = (bound * mag) / (m0 + j) < stop ? quiet + 1 : 0;
+        if (quiet >= 4) cut = m0 + j + 1;
+      }
     }
     if (withGradient) {
-      const g = gradientCoefficients(m, u, a, width, onlyV0);
+      const g = gradientCoefficients(m, Float64Array.from(uc), a, width, onlyV0);
       grads = g.map((arr, p) => {
         const out = new Float64Array(m1);
         if (grads[p]) out.set(grads[p]!);
         out.set(arr, m0);
         return out;
       });
-    }
-    A = Anew;
-    let cut = -1;
-    if (fixedN === undefined) {
-      for (let j = Math.max(1, m0); j < m1; j++) {
-        const term = (bound * Math.exp(eRe[j - m0]!)) / j;
-        quiet = term < stop ? quiet + 1 : 0;
-        if (quiet >= 4) {
-          cut = j + 1;
-          break;
-        }
-      }
     }
     n = m1;
     if (cut > 0) {
