@@ -488,7 +488,8 @@ export function prepareVariant(
             const K4 = g2 * h * (1 - rho * rho);
             // Martingale correction, Andersen (2008), Sec. 7.2, eqs. (49)–(50): A = K2 + ½ K4.
             const A = K2 + 0.5 * K4;
-            const base0 = -q;
+            const K13 = K1 + 0.5 * K3;
+            const invA2 = A > 0 ? 1 / (2 * A) : Infinity;
             for (let p = 0; p < n; p++) {
               const V = vv[p]!;
               const zv = W[wv + p]!;
@@ -500,25 +501,28 @@ export function prepareVariant(
               if (psi <= QE_PSI_C) {
                 // Quadratic branch, eqs. (27)–(28): V' = a (b + Z_v)².
                 const ip = 2 / psi;
-                const b2 = ip - 1 + Math.sqrt(ip) * Math.sqrt(ip - 1);
+                const b2 = ip - 1 + Math.sqrt(ip * (ip - 1));
                 const a = mean / (1 + b2);
-                const bb = Math.sqrt(b2);
-                Vn = a * (bb + zv) * (bb + zv);
-                if (A < 1 / (2 * a))
-                  k0 = (-A * b2 * a) / (1 - 2 * A * a) + 0.5 * Math.log(1 - 2 * A * a) - (K1 + 0.5 * K3) * V;
+                const bz = Math.sqrt(b2) + zv;
+                Vn = a * bz * bz;
+                if (a < invA2) {
+                  const d = 1 - 2 * A * a;
+                  k0 = (-A * b2 * a) / d + 0.5 * Math.log(d) - K13 * V;
+                }
               } else {
                 // Exponential branch, eqs. (29)–(30): P(V' = 0) = p, else exponential with rate β.
                 const pp = (psi - 1) / (psi + 1);
                 const beta = (1 - pp) / mean;
                 const u = normCdf(zv);
                 Vn = u <= pp ? 0 : Math.log((1 - pp) / (1 - u)) / beta;
-                if (A < beta) k0 = -Math.log(pp + (beta * (1 - pp)) / (beta - A)) - (K1 + 0.5 * K3) * V;
+                if (A < beta) k0 = -Math.log(pp + (beta * (1 - pp)) / (beta - A)) - K13 * V;
               }
               const iv = h * (g1 * V + g2 * Vn);
+              const siv = Math.sqrt(iv);
               // Residual of the equity driver given its own variance driver: R = W_S − ρ W_v ~ N(0, 1 − ρ²).
               const R = W[wo + p]! - rho * zv;
-              const y =
-                ls[p]! + sr[p]! + base0 + k0 + K1 * V + K2 * Vn + Math.sqrt(iv) * R - qx * Math.sqrt(h * iv);
+              // Quanto drift −ρ(S,X) σ_X ∫√v dt ≈ −ρ σ_X √(h ∫v) (zero for a domestic equity).
+              const y = ls[p]! + sr[p]! - q + k0 + K1 * V + K2 * Vn + siv * R - qx * sqh * siv;
               ls[p] = y;
               out[o1 + p] = Math.exp(y);
               vv[p] = Vn;
