@@ -5,7 +5,7 @@
  * SIAM J. Appl. Math. 11, 1963. Damping update and stopping rules: K. Madsen, H.B. Nielsen, O. Tingleff,
  * "Methods for non-linear least squares problems", 2nd ed., IMM DTU 2004, Algorithm 3.16 and eq. (3.14).
  * Bounds by transformation: a parameter with both bounds is p = lo + (hi − lo)/(1 + e^{−z}), with one bound
- * p = lo + e^{z} (or hi − e^{z}); the iteration runs in z (common practice).
+ * p = lo + e^{z} (or hi − e^{z}), without bounds p = |p_start|·z; the iteration runs in z (common practice).
  */
 import { issue, type FieldIssue } from '../errors.ts';
 import { choleskyLower, choleskySolve, spdInverse, symmetricEigenvalues } from './smallLinalg.ts';
@@ -103,7 +103,9 @@ function transformFor(par: FitParameter): Transform {
     return { toP: (z) => lo + Math.exp(z), toZ: (p) => Math.log(Math.max(p - lo, 1e-12)) };
   if (hi !== undefined)
     return { toP: (z) => hi - Math.exp(z), toZ: (p) => Math.log(Math.max(hi - p, 1e-12)) };
-  return { toP: (z) => z, toZ: (p) => p };
+  // Unbounded: scaled by the starting magnitude so every z is of order one (steps and tolerances compare alike).
+  const sc = Math.abs(par.initial) > 1e-12 ? Math.abs(par.initial) : 1;
+  return { toP: (z) => z * sc, toZ: (p) => p / sc };
 }
 
 /** Fits the free parameters of `problem` and returns a full report (never throws for a poor fit: see `converged`). */
@@ -141,7 +143,7 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
     const m = r0.length;
     const J = Array.from({ length: m }, () => new Array<number>(n).fill(0));
     for (let j = 0; j < n; j++) {
-      const h = 1e-6 * Math.max(1, Math.abs(z[j]!));
+      const h = 1e-7 * Math.max(1, Math.abs(z[j]!));
       const zj = z.slice();
       zj[j] = z[j]! + h;
       const r1 = weighted(toParams(zj));

@@ -1,0 +1,106 @@
+import { describe, expect, it } from 'vitest';
+import { fitLeastSquares } from '../../../src/engine/calibration/levenbergMarquardt.ts';
+
+// NIST Statistical Reference Datasets, nonlinear regression, "Misra1a" (Misra 1978, lower difficulty):
+// y = b1 (1 − exp(−b2 x)); data and certified values from https://www.itl.nist.gov/div898/strd/nls/data/misra1a.shtml
+// (certified b1 = 2.3894212918E+02 ± 2.7070075241E+00, b2 = 5.5015643181E-04 ± 7.2668688436E-06,
+// residual standard deviation 1.0187876330E-01; starts 1: (500, 1e-4), 2: (250, 5e-4)).
+const MISRA_X = [
+  77.6, 114.9, 141.1, 190.8, 239.9, 289.0, 332.8, 378.4, 434.8, 477.3, 536.8, 593.1, 689.1, 760.0,
+];
+const MISRA_Y = [
+  10.07, 14.73, 17.94, 23.93, 29.61, 35.18, 40.02, 44.82, 50.76, 55.05, 61.01, 66.4, 75.47, 81.78,
+];
+const misra = (b1: number, b2: number) => MISRA_X.map((x, i) => b1 * (1 - Math.exp(-b2 * x)) - MISRA_Y[i]!);
+
+describe('Levenberg–Marquardt wrapper', () => {
+  for (const [start, b1, b2] of [
+    ['NIST start 1', 500, 1e-4],
+    ['NIST start 2', 250, 5e-4],
+  ] as const) {
+    it(`reproduces the NIST Misra1a certified estimates and standard errors from ${start}`, () => {
+      const r = fitLeastSquares({
+        parameters: [
+          { name: 'b1', initial: b1 },
+          { name: 'b2', initial: b2 },
+        ],
+        residuals: (p) => misra(p.b1!, p.b2!),
+      });
+      const info = JSON.stringify({ start, params: r.parameters, se: r.standardErrors, stop: r.stopReason });
+      expect(r.converged, info).toBe(true);
+      // NIST certifies 11 digits; tolerance 1e-7 relative on estimates, 1e-4 on the standard errors
+      // (forward-difference Jacobian).
+      expect(Math.abs(r.parameters.b1! / 2.3894212918e2 - 1), info).toBeLessThan(1e-7);
+      expect(Math.abs(r.parameters.b2! / 5.5015643181e-4 - 1), info).toBeLessThan(1e-7);
+      expect(Math.abs(r.standardErrors.b1! / 2.7070075241 - 1), info).toBeLessThan(1e-4);
+      expect(Math.abs(r.standardErrors.b2! / 7.2668688436e-6 - 1), info).toBeLessThan(1e-4);
+      const rsd = Math.sqrt(r.residuals.reduce((s, x) => s + x * x, 0) / (14 - 2));
+      expect(Math.abs(rsd / 1.018787633e-1 - 1), info).toBeLessThan(1e-7);
+      expect(r.conditionNumber).toBeGreaterThan(1);
+    });
+  }
+
+  it('finds the Rosenbrock minimum (1, 1) written as least squares r = (10(y − x²), 1 − x)', () => {
+    // H.H. Rosenbrock, "An automatic method for finding the greatest or least value of a function", Computer J. 3,
+    // 1960; least-squares form as in Madsen, Nielsen & Tingleff (2004), Example 3.13 (start (−1.2, 1)).
+    const r = fitLeastSquares({
+      parameters: [
+        { name: 'x', initial: -1.2 },
+        { name: 'y', initial: 1 },
+      ],
+      residuals: (p) => [10 * (p.y! - p.x! ** 2), 1 - p.x!],
+    });
+    expect(r.converged).toBe(true);
+    expect(Math.abs(r.parameters.x! - 1)).toBeLessThan(1e-8);
+    expect(Math.abs(r.parameters.y! - 1)).toBeLessThan(1e-8);
+  });
+
+  it('keeps parameters inside their bounds and stops at the bound when the optimum lies outside', () => {
+    // Unconstrained optimum of Σ(b − 3)² is 3 (common practice); with b ≤ 2 the best feasible point is the bound.
+    const r = fitLeastSquares({
+      parameters: [{ name: 'b', initial: 1, lower: 0, upper: 2 }],
+      residuals: (p) => [p.b! - 3, 2 * (p.b! - 3)],
+    });
+    expect(r.parameters.b!).toBeLessThanOrEqual(2);
+    expect(2 - r.parameters.b!).toBeLessThan(1e-3);
+  });
+
+  it('holds fixed parameters and reports named constraints without imposing them', () => {
+    const r = fitLeastSquares({
+      parameters: [
+        { name: 'b1', initial: 240 },
+        { name: 'b2', initial: 5.5e-4, fixed: true },
+      ],
+      residuals: (p) => misra(p.b1!, p.b2!),
+      constraints: [{ name: 'b1 ≤ 100', mode: 'report', g: (p) => 100 - p.b1! }],
+    });
+    expect(r.parameters.b2).toBe(5.5e-4);
+    expect(r.standardErrors.b2).toBeUndefined();
+    expect(r.constraints[0]).toMatchObject({ name: 'b1 ≤ 100', satisfied: false, mode: 'report' });
+  });
+
+  it('flags a fit stopped by the evaluation budget as not converged, with a warning', () => {
+    const r = fitLeastSquares(
+      {
+        parameters: [
+          { name: 'b1', initial: 500 },
+          { name: 'b2', initial: 1e-4 },
+        ],
+        residuals: (p) => misra(p.b1!, p.b2!),
+      },
+      { maxEvaluations: 4 },
+    );
+    expect(r.converged).toBe(false);
+    expect(r.stopReason).toBe('max-evaluations');
+    expect(r.warnings.map((w) => w.code)).toContain('W_FIT_NOT_CONVERGED');
+  });
+
+  it('reports non-finite residuals at the start instead of returning a fit', () => {
+    const r = fitLeastSquares({
+      parameters: [{ name: 'b', initial: -1 }],
+      residuals: (p) => [Math.sqrt(p.b!)],
+    });
+    expect(r.converged).toBe(false);
+    expect(r.stopReason).toBe('non-finite');
+  });
+});
