@@ -10,3 +10,4 @@ export * from './priceExerciseRight.ts';
 export * from './sources/lognormalBermudan.ts';
 export * from './sources/hullWhiteBermudanSwaption.ts';
 export * from './sources/dealExerciseSource.ts';
+export * from './exercisePathEvaluator.ts';

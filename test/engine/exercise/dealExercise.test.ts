@@ -4,7 +4,12 @@ import { compileDeal } from '../../../src/engine/deal/compileDeal.ts';
 import { evaluateDetailed } from '../../../src/engine/deal/dealEvaluator.ts';
 import type { DealInput } from '../../../src/engine/deal/types.ts';
 import { dealExerciseSource } from '../../../src/engine/exercise/sources/dealExerciseSource.ts';
-import { exerciseSeeds, priceExerciseRight } from '../../../src/engine/exercise/index.ts';
+import {
+  exerciseSeeds,
+  makeExercisePathEvaluator,
+  priceExerciseRight,
+} from '../../../src/engine/exercise/index.ts';
+import type { ExercisePolicy } from '../../../src/engine/exercise/index.ts';
 import type { VariantSpec } from '../../../src/engine/simulation/types.ts';
 
 const full = process.env.FT_PROFILE === 'full';
@@ -146,6 +151,27 @@ describe('early exercise of deals written in the deal language', () => {
     const total = evaluateDetailed(compiled, batch).total;
     const mean = total.reduce((s, v) => s + v, 0) / total.length;
     expect(Math.abs(r.estimate.primal.value - mean)).toBeLessThan(1e-12 * mean);
+  });
+
+  it('the saved policy as a path evaluator reproduces the pricing pass on the same paths, bit for bit', () => {
+    // Consistency of the two forms of the pricing pass (the study runs the evaluator form in its batches).
+    const compiled = compileDeal(callableZero(68));
+    const src = dealExerciseSource({ compiled, variant: hwVariant(0.08, 0.01, 0.1), maxStep: 0.25 });
+    const r = priceExerciseRight(src, {
+      seed: 'as-evaluator',
+      regressionPaths: 3000,
+      pricingPaths: 4000,
+      batchSize: 4000,
+    });
+    const saved = JSON.parse(JSON.stringify(r.policy)) as ExercisePolicy;
+    const ev = makeExercisePathEvaluator(compiled, saved);
+    const values = ev(src.paths(4000, exerciseSeeds.pricing('as-evaluator', 0)));
+    let sum = 0;
+    for (let p = 0; p < values.length; p++) sum += values[p]!;
+    expect(sum / values.length).toBe(r.estimate.primal.value);
+    // A policy for other dates is refused with the field named.
+    const other = { ...saved, dates: saved.dates.map((d) => ({ ...d, time: d.time + 0.5 })) };
+    expect(() => makeExercisePathEvaluator(compiled, other)).toThrow(/exercise\.policy\.dates/);
   });
 
   it('rights held by both parties are refused with a message naming the field', () => {

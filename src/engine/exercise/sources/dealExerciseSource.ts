@@ -46,8 +46,8 @@ export interface DealExerciseSourceSpec {
   prepare?: PrepareOptions;
 }
 
-/** Times and holder of the deal's exercise rights; all rights must be held by the same party. */
-function rightsOf(compiled: CompiledDeal): { times: number[]; holder: ExerciseHolder } {
+/** Times (merged over rights, years) and holder of the deal's exercise rights; all must be held by one party. */
+export function dealRightOf(compiled: CompiledDeal): { times: number[]; holder: ExerciseHolder } {
   if (compiled.exercise.length === 0)
     fail(
       'E_NO_EXERCISE',
@@ -68,6 +68,79 @@ function rightsOf(compiled: CompiledDeal): { times: number[]; holder: ExerciseHo
   return { times, holder: compiled.exercise[0]!.by };
 }
 
+/** What {@link dealExerciseSample} needs to know about the right. */
+export interface DealRightLayout {
+  times: number[];
+  holder: ExerciseHolder;
+  stateNames: string[];
+  /** The deal's funding spread (continuous, per year), part of its discounting. */
+  fundingSpread: number;
+}
+
+/**
+ * Converts the deal layer's detailed evaluation of one batch into an exercise sample, keeping exercise dates
+ * `from` … n−1 (and the flows after t_{from−1}). Deflators are the batch's numeraire discount at each exercise
+ * date times the funding discount e^{−s t}, the same discounting the deal applies to its flows.
+ */
+export function dealExerciseSample(
+  det: DetailedEvaluation,
+  batch: PathBatch,
+  right: DealRightLayout,
+  from = 0,
+): ExerciseSample {
+  const { times, holder, fundingSpread: funding } = right;
+  const n = times.length;
+  const tol = 1e-10;
+  const segmentOf = (t: number): number => {
+    for (let j = 0; j < n; j++) if (t <= times[j]! + tol) return j;
+    return n;
+  };
+  const P = det.nPaths;
+  const names = right.stateNames;
+  const nd = n - from;
+  const state = new Float64Array(nd * names.length * P);
+  const exerciseValue = new Float64Array(nd * P);
+  const deflator = new Float64Array(nd * P);
+  const alive = new Uint8Array(nd * P);
+  // Columns of several rights on the same date are merged: a path may exercise any of them (the best for the
+  // holder, the cheapest for the issuer); their alive flags agree.
+  const best = holder === 'holder' ? Math.max : Math.min;
+  const seen = new Uint8Array(n);
+  for (const col of det.exercise) {
+    const j = times.findIndex((t) => Math.abs(t - col.time) <= tol);
+    if (j < from) continue;
+    const k = j - from;
+    for (let p = 0; p < P; p++) {
+      const v = col.value[p]!;
+      exerciseValue[k * P + p] = seen[j] ? best(exerciseValue[k * P + p]!, v) : v;
+      alive[k * P + p] = col.alive[p]! > 0 ? 1 : 0;
+    }
+    if (!seen[j]) {
+      names.forEach((name, v) => {
+        const f = col.features[name];
+        if (!f)
+          throw new EngineError(
+            'E_EXERCISE_FEATURES',
+            `the deal's exercise date ${col.time} lacks the regression variable ${name}`,
+          );
+        state.set(f, (k * names.length + v) * P);
+      });
+      const off = col.step * P;
+      const fund = Math.exp(-funding * times[j]!);
+      for (let p = 0; p < P; p++) deflator[k * P + p] = batch.discount[off + p]! * fund;
+    }
+    seen[j] = 1;
+  }
+  const segments = new Float64Array((nd + 1) * P);
+  for (const flow of det.flows) {
+    const s = segmentOf(flow.time) - from;
+    if (s < 0) continue;
+    const off = s * P;
+    for (let p = 0; p < P; p++) segments[off + p] = segments[off + p]! + flow.values[p]!;
+  }
+  return { nPaths: P, nDates: nd, nState: names.length, state, exerciseValue, segments, deflator, alive };
+}
+
 /** Builds the exercise source of a compiled deal under one variant. */
 export function dealExerciseSource(spec: DealExerciseSourceSpec): ExerciseSource & {
   /** The prepared variant and the grid (for benchmarks and diagnostics). */
@@ -76,19 +149,13 @@ export function dealExerciseSource(spec: DealExerciseSourceSpec): ExerciseSource
   paths(nPaths: number, seed: string): PathBatch;
 } {
   const { compiled, variant } = spec;
-  const { times, holder } = rightsOf(compiled);
+  const { times, holder } = dealRightOf(compiled);
   const layoutVariants = spec.layoutVariants ?? [variant];
   const layout: DriverLayout = makeDriverLayout(layoutVariants);
   const grid = makeTimeGrid([...compiled.gridTimes, ...times], spec.maxStep, modelBreakTimes(layoutVariants));
   const prepared = prepareVariant(variant, grid, layout, spec.prepare ?? {});
-  const n = times.length;
   const nSteps = grid.times.length - 1;
   const steps = times.map((t, j) => grid.indexOf(t, `deal.exercise.times[${j}]`));
-  const tol = 1e-10;
-  const segmentOf = (t: number): number => {
-    for (let j = 0; j < n; j++) if (t <= times[j]! + tol) return j;
-    return n;
-  };
   const funding = compiled.fundingSpread ?? 0;
   // Feature names from a probe evaluation on one path: they depend on the deal and the variant only.
   let stateNames: string[] | undefined;
@@ -105,52 +172,8 @@ export function dealExerciseSource(spec: DealExerciseSourceSpec): ExerciseSource
     return out;
   };
 
-  function toSample(det: DetailedEvaluation, batch: PathBatch, from: number): ExerciseSample {
-    const P = det.nPaths;
-    const names = stateNames!;
-    const nd = n - from;
-    const state = new Float64Array(nd * names.length * P);
-    const exerciseValue = new Float64Array(nd * P);
-    const deflator = new Float64Array(nd * P);
-    const alive = new Uint8Array(nd * P);
-    // Columns of several rights on the same date are merged: a path may exercise any of them (the best for the
-    // holder, the cheapest for the issuer); their alive flags agree.
-    const best = holder === 'holder' ? Math.max : Math.min;
-    const seen = new Uint8Array(n);
-    for (const col of det.exercise) {
-      const j = times.findIndex((t) => Math.abs(t - col.time) <= tol);
-      if (j < from) continue;
-      const k = j - from;
-      for (let p = 0; p < P; p++) {
-        const v = col.value[p]!;
-        exerciseValue[k * P + p] = seen[j] ? best(exerciseValue[k * P + p]!, v) : v;
-        alive[k * P + p] = col.alive[p]! > 0 ? 1 : 0;
-      }
-      if (!seen[j]) {
-        names.forEach((name, v) => {
-          const f = col.features[name];
-          if (!f)
-            throw new EngineError(
-              'E_EXERCISE_FEATURES',
-              `the deal's exercise date ${col.time} lacks the regression variable ${name}`,
-            );
-          state.set(f, (k * names.length + v) * P);
-        });
-        const off = steps[j]! * P;
-        const fund = Math.exp(-funding * times[j]!);
-        for (let p = 0; p < P; p++) deflator[k * P + p] = batch.discount[off + p]! * fund;
-      }
-      seen[j] = 1;
-    }
-    const segments = new Float64Array((nd + 1) * P);
-    for (const flow of det.flows) {
-      const s = segmentOf(flow.time) - from;
-      if (s < 0) continue;
-      const off = s * P;
-      for (let p = 0; p < P; p++) segments[off + p] = segments[off + p]! + flow.values[p]!;
-    }
-    return { nPaths: P, nDates: nd, nState: names.length, state, exerciseValue, segments, deflator, alive };
-  }
+  const toSample = (det: DetailedEvaluation, batch: PathBatch, from: number): ExerciseSample =>
+    dealExerciseSample(det, batch, { times, holder, stateNames: stateNames!, fundingSpread: funding }, from);
 
   function evaluate(normals: Float64Array, nPaths: number): { det: DetailedEvaluation; batch: PathBatch } {
     const batch = prepared.simulate(normals, nPaths);
