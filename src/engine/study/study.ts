@@ -16,6 +16,7 @@ import { isPsd } from '../math/linalg.ts';
 import { bsPrice } from '../models/blackScholes.ts';
 import { bsImpliedVol } from '../models/blackScholes.ts';
 import { gridVolAt } from '../calibration/volGrid.ts';
+import { calibrateLocalVol } from '../calibration/localVolCalibration.ts';
 import { equityForward } from '../calibration/volGrid.ts';
 import { inProcessExecutor, type BatchExecutor } from '../simulation/runSimulation.ts';
 import type { RunSpec } from '../simulation/runSpec.ts';
@@ -42,6 +43,7 @@ import {
   STUDY_FORMAT,
   TOOL_NAME,
   type FactorVerdict,
+  type LadderVariant,
   type GreekVerdict,
   type SavedStudy,
   type StudyInput,
@@ -72,6 +74,13 @@ export interface RunStudyOptions {
 }
 
 const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
+
+/** Largest step of the local-vol diagnostic's grid (years): one week, since log-Euler reads σ at each step's start. */
+export const LV_STEP = 1 / 52;
+
+function fmtStep(t: number): string {
+  return `${Math.round(t * 365 * 10) / 10} days`;
+}
 
 /** Default settings; every field can be overridden. */
 export const DEFAULT_SETTINGS: StudySettings = {
@@ -269,6 +278,48 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
   const ladder = calibrateLadder(ladderReq);
   warnings.push(...ladder.warnings);
   const variants = ladder.variants.map((v) => v.spec);
+  // Local-volatility diagnostic (Dupire 1994 from an SVI surface, calibration layer), deterministic rates.
+  let lvVariant: LadderVariant | null = null;
+  const svBit = candidates.indexOf('stochVol');
+  if (S.localVol && svBit >= 0) {
+    const base = ladder.variants[0]!;
+    const t0 = now();
+    const lvWarnings: string[] = [];
+    const equities = base.spec.equities.map((e) => {
+      const q = snap.equities[e.name]!;
+      const lv = calibrateLocalVol({
+        name: e.name,
+        equity: q,
+        curve: makeCurve(snap.curves[q.currency]!, `market.curves.${q.currency}`),
+      });
+      lvWarnings.push(...lv.warnings.map((w) => w.message));
+      return { ...e, dynamics: lv.dynamics };
+    });
+    lvVariant = {
+      id: 'localvol',
+      label: 'Local volatility (Dupire), deterministic rates — diagnostic',
+      mask: 0,
+      factors: [],
+      role: 'localVol',
+      spec: {
+        ...base.spec,
+        id: 'localvol',
+        label: 'Local volatility (Dupire), deterministic rates',
+        equities,
+      },
+      calibration: {
+        characteristicFunction: 'none',
+        rmseVol: 0,
+        maxAbsVolError: 0,
+        seconds: (now() - t0) / 1000,
+        fit: [],
+        warnings: lvWarnings,
+        feller: {},
+      },
+    };
+    warnings.push(...lvWarnings);
+  }
+  const allVariants = lvVariant ? [...ladder.variants, lvVariant] : ladder.variants;
   let vegaLadders: { up: CalibratedLadder; down: CalibratedLadder } | null = null;
   if (S.greeks && analysis.equities.length > 0) {
     const warm = ladder.heston;
@@ -607,6 +658,62 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       });
     }
 
+    // local-vol diagnostic: Black–Scholes, Heston and local vol on one finer grid (log-Euler needs small steps)
+    let lvRun: { lv: ValueSe; smile: ValueSe; dynamics: ValueSe; total: ValueSe } | null = null;
+    if (lvVariant) {
+      progress(
+        0.74,
+        'local vol',
+        `Black–Scholes, Heston and Dupire local vol on steps of ${fmtStep(LV_STEP)}`,
+      );
+      const lvVariants = [variants[0]!, variants[1 << svBit]!, lvVariant.spec];
+      const grid = { eventTimes, maxStep: Math.min(maxStep, LV_STEP) };
+      const r = await runInLooks({
+        spec: { variants: lvVariants, payoff, grid, seed: S.seed, batchSize: S.batchSize, maxPaths: aux },
+        executor,
+        lookPaths: [aux],
+        signal: opts.signal,
+      });
+      simSeconds += r.seconds;
+      const st = toStats(r.looks[0]!);
+      lvRun = {
+        lv: combination(st, { 2: 1 }),
+        smile: combination(st, { 2: 1, 0: -1 }),
+        dynamics: combination(st, { 1: 1, 2: -1 }),
+        total: combination(st, { 1: 1, 0: -1 }),
+      };
+      if (vanillas.length) {
+        const fr = await runInLooks({
+          spec: {
+            variants: [lvVariant.spec],
+            payoff: { factory: fairnessPayoffFactoryUrl(), description: { vanillas, gridTimes: eventTimes } },
+            grid,
+            seed: S.seed,
+            batchSize: S.batchSize,
+            maxPaths: aux,
+          },
+          executor,
+          lookPaths: [aux],
+          signal: opts.signal,
+        });
+        simSeconds += fr.seconds;
+        const fs = columnStats(fr.looks[0]!);
+        vanillas.forEach((q, qi) => {
+          const mc = fs.mean(qi);
+          lvVariant!.calibration.fit.push({
+            instrument: `${q.equity} ${q.isCall ? 'call' : 'put'} K=${Math.round(q.strike * 100) / 100} T=${q.expiry} (Monte Carlo reprice)`,
+            marketVol: q.vol,
+            modelVol: q.vol,
+            priceError: mc - q.market,
+            mcError: { value: mc - q.market, se: fs.se(qi) },
+          });
+        });
+        const errs = lvVariant.calibration.fit.map((f) => Math.abs(f.priceError));
+        lvVariant.calibration.maxAbsVolError = 0;
+        void errs;
+      }
+    }
+
     // sweeps over unquoted correlations
     const sweeps: Sweep[] = [];
     if (S.sweeps && snap.correlationRanges) {
@@ -790,9 +897,9 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           limitations.push(
             `Feller condition fails for ${e} in ${v.label} (2κθ/σ² = ${f.toFixed(3)}): variance can touch zero.`,
           );
-    if (S.localVol)
+    if (lvVariant)
       limitations.push(
-        'Local-volatility diagnostic not available in this build: no Dupire surface is calibrated yet, so the split of the stochastic-vol effect into smile and dynamics is not shown.',
+        "The local-volatility diagnostic uses Dupire's formula on an SVI fit of the grid, simulated by log-Euler on the study grid (no step-halving check); its vanilla repricing on the study paths is shown with the other variants.",
       );
     const assumed = Object.entries(snap.correlationRanges ?? {}).map(([p, r]) => {
       const [a, b] = p.split('|') as [string, string];
@@ -815,7 +922,10 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
 
     const results: StudyResults = {
       looks: schedule,
-      prices: ladder.variants.map((v) => combination(final, { [col(v.mask)]: 1 })),
+      prices: [
+        ...ladder.variants.map((v) => combination(final, { [col(v.mask)]: 1 })),
+        ...(lvRun ? [lvRun.lv] : []),
+      ],
       convergence,
       tau,
       joint,
@@ -823,7 +933,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       greeks,
       greekVerdicts,
       sweeps,
-      localVol: null,
+      localVol: lvRun ? { smile: lvRun.smile, dynamics: lvRun.dynamics, total: lvRun.total } : null,
       modelRisk,
       stepHalving,
       stepHalvingChange: stepHalvingRaw,
@@ -851,7 +961,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       rules: { factors: P.rules.factors, notes: P.rules.notes },
       candidates,
       required,
-      ladder: ladder.variants,
+      ladder: allVariants,
       results,
       verdicts,
       recommended: { factors: recFactors, variant: recVariant.id, summary: recSummary },
