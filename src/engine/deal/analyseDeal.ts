@@ -249,7 +249,16 @@ export function analyseDeal(deal: CompiledDeal): DealAnalysis {
   const payments = [...deal.events.flatMap((e) => e.pay), ...deal.exercise.map((x) => x.amount)];
   const compoPays = payments.filter((p) => p.conversion?.kind === 'compo');
   const quantoPays = payments.filter((p) => p.conversion?.kind === 'quanto');
-  const foreignEq = equities.filter((e) => e.currency !== deal.currency);
+  // A foreign equity is quanto unless every payment is made in its own currency and converted at the path FX rate
+  // (a compo payoff carries no quanto drift: common practice).
+  const foreignEq = equities.filter(
+    (e) =>
+      e.currency !== deal.currency &&
+      !(
+        payments.length > 0 &&
+        payments.every((p) => p.currency === e.currency && p.conversion?.kind === 'compo')
+      ),
+  );
   const fxUsed = deal.fx.filter((f) => usedFx.has(f.id));
   const fxOut = [...fxUsed];
   for (const p of compoPays)

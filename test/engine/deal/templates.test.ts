@@ -154,3 +154,27 @@ describe('the analysis tells rate uses apart', () => {
     expect(one('short_rate(DOM) > 0.03 ? 1 : 0').nonLinear.present).toBe(true);
   });
 });
+
+describe('the analysis marks compo payments and FX read on the path', () => {
+  it('a payment in ASH converted at the path FX rate is compo, FX dependent and cross-currency', () => {
+    const x = analyseDeal(
+      checkDeal({
+        format: 'factor-triage/deal@1',
+        name: 'compo',
+        notional: 1,
+        currency: 'DOM',
+        underlyings: { KESO: { kind: 'equity', currency: 'ASH' } },
+        schedules: { s: { dates: [1] } },
+        events: [
+          {
+            on: 's',
+            pay: { amount: 'max(perf(KESO) - 1, 0)', currency: 'ASH', conversion: { kind: 'compo' } },
+          },
+        ],
+      }).compiled!,
+    );
+    expect(x.compo.present && x.fxDependent.present && x.crossCurrency.present).toBe(true);
+    expect(x.quanto.present).toBe(false);
+    expect(x.fx).toEqual([{ id: 'ASH/DOM', units: 'DOM', per: 'ASH' }]);
+  });
+});
