@@ -19,7 +19,7 @@ export function makeNodeWorkerExecutor(workers: number = defaultWorkerCount()): 
   const entry = new URL('./batchWorker.node.ts', import.meta.url).href;
   const ports: BatchPort[] = [];
   for (let i = 0; i < workers; i++) {
-    const w = new Worker(boot, { workerData: { entry } });
+    const w = new Worker(boot, { argv: [entry] });
     w.unref();
     ports.push({
       post: (m) => w.postMessage(m),

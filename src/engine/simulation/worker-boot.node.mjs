@@ -1,6 +1,6 @@
-// Worker thread boot: registers the TypeScript loader, then imports the TypeScript entry named in workerData.
+// Worker thread boot: registers the TypeScript loader, then imports the TypeScript entry passed as the worker's
+// first argument (Worker option `argv`).
 import { register } from 'tsx/esm/api';
-import { workerData } from 'node:worker_threads';
 
 register();
-await import(workerData.entry);
+await import(process.argv[2]);

@@ -72,8 +72,8 @@ describe('European calls by Monte Carlo agree with closed forms within 3 standar
 
   it('Heston QE keeps a small bias on Andersen Case I at coarse steps (dt = 1/4)', async () => {
     // Andersen (2008), Case I: S=100, K=100, T=10, v0=0.04, κ=0.5, θ=0.04, σ=1, ρ=−0.9; exact 13.084670137
-    // (published.md, re-computed). Andersen's bias tables for QE-M on Case I show biases of a few hundredths at
-    // dt = 1/4 (from memory, low confidence); allowance 0.1 beyond 3 SE.
+    // (published.md, re-computed). Andersen's Sec. 6 bias tables for Case I (K = 100) show QE-M biases of a few
+    // hundredths at dt = 1/4 (from memory, low confidence; the table number was not checked); allowance 0.1 beyond 3 SE.
     const dyn = { kind: 'heston' as const, v0: 0.04, kappa: 0.5, theta: 0.04, sigma: 1, rho: -0.9 };
     const r = await run(
       spec(
