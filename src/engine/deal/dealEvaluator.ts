@@ -452,16 +452,26 @@ export function makeDealRunner(compiled: CompiledDeal, opts: DealEvaluatorOption
       const disc = batch.discount;
       const fs = Math.exp(-spread * t) * notional;
       const conv = pay.conversion;
-      if (conv === null) {
-        for (let p = 0; p < n; p++) out[p] = mask[p]! * amount[p]! * disc[k * n + p]! * fs;
-      } else if (conv.kind === 'quanto') {
-        const q = conv.rate * fs;
-        for (let p = 0; p < n; p++) out[p] = mask[p]! * amount[p]! * disc[k * n + p]! * q;
-      } else {
-        const dv = domesticValue(pay.currency);
-        for (let p = 0; p < n; p++)
-          out[p] = mask[p] === 0 ? 0 : mask[p]! * amount[p]! * dv(k, p) * disc[k * n + p]! * fs;
+      const scale = conv !== null && conv.kind === 'quanto' ? conv.rate * fs : fs;
+      const dv = conv !== null && conv.kind === 'compo' ? domesticValue(pay.currency) : null;
+      let bad = -1;
+      for (let p = 0; p < n; p++) {
+        if (mask[p] === 0) {
+          out[p] = 0;
+          continue;
+        }
+        const a = amount[p]!;
+        if (!Number.isFinite(a)) bad = p;
+        out[p] = a * (dv ? dv(k, p) : 1) * disc[k * n + p]! * scale;
       }
+      if (bad >= 0)
+        fail(
+          'E_PAYOFF_NOT_FINITE',
+          pay.amount.field,
+          `must give a finite amount on every path where it pays (t = ${t.toFixed(4)} years, path ${bad})`,
+          amount[bad],
+          'guard divisions and logarithms, e.g. x > 0 ? log(x) : 0',
+        );
     };
 
     let oi = 0;

@@ -209,3 +209,25 @@ describe('type-as-you-check context', () => {
     expect(checkExpression('1 + x', expressionContextOf({ parameters: { x: 1 } }, 'f')).errors).toEqual([]);
   });
 });
+
+describe('non-finite amounts', () => {
+  const batch = handBatch([
+    [100, 0, 100, 100],
+    [100, 50, 100, 100],
+  ]);
+  const one = (amount: string, when?: string): DealInput => ({
+    ...memoryDeal,
+    state: {},
+    events: [{ on: 'calls', ...(when ? { when } : {}), pay: { amount } }],
+  });
+  it('an amount that is infinite where the event pays is an error naming the field', () => {
+    expect(() => makeDealEvaluator(compileDeal(one('1 / ALDR')))(batch)).toThrow(
+      /deal\.events\[0\]\.pay\.amount must give a finite amount .*t = 1\.0000.*path 0/,
+    );
+  });
+  it('an amount that is infinite only where the event does not fire is ignored', () => {
+    const v = makeDealEvaluator(compileDeal(one('1 / ALDR', 'ALDR > 0')))(batch);
+    expect(Number.isFinite(v[0]!) && Number.isFinite(v[1]!)).toBe(true);
+    expect(v[0]).toBeCloseTo(100 * 0.01 * Math.exp(-0.1), 12);
+  });
+});
