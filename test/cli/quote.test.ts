@@ -83,12 +83,71 @@ describe('quote command', () => {
     const io = capture();
     expect(await main(['quote', 'samples/quotes-demo.json', '--json'], io)).toBe(0);
     const out = JSON.parse(io.outLines.join('\n'));
-    expect(out.results.length).toBe(12);
+    expect(out.results.length).toBe(14);
     for (const r of out.results) expect(Number.isFinite(r.price)).toBe(true);
     // Black–Scholes line: the implied vol of its own price is its vol (round trip; common practice).
     expect(Math.abs(out.results[0].impliedVol - 0.235)).toBeLessThan(1e-12);
     const kinds = new Set(out.results.map((r: { kind: string }) => r.kind));
     expect(kinds).toEqual(new Set(['european', 'zero-bond-option', 'caplet', 'swaption']));
+  });
+
+  it('prices a quanto line at Haug (1998) pp. 105-106: 5.3280 with fixed FX 1.5 (from memory; QuantLib test-suite/quantooption.cpp)', async () => {
+    const file = {
+      format: 'factor-triage/quotes@1',
+      curves: { DOM: { flat: 0.08 }, ASH: { flat: 0.05 } },
+      models: {
+        qx: {
+          kind: 'quanto',
+          curve: 'DOM',
+          foreignCurve: 'ASH',
+          spot: 100,
+          divYield: 0.04,
+          vol: 0.2,
+          fxVol: 0.1,
+          rho: 0.3,
+          fixedFx: 1.5,
+        },
+      },
+      instruments: [{ kind: 'european', model: 'qx', type: 'call', strike: 105, expiry: 0.5 }],
+    };
+    const io = capture();
+    expect(await main(['quote', writeJson('quanto.json', file), '--json'], io)).toBe(0);
+    const out = JSON.parse(io.outLines.join('\n'));
+    expect(Math.abs(out.results[0].price - 5.32803391922)).toBeLessThan(1e-10);
+  });
+
+  it('prices a Black–Scholes–Hull–White line with a vol term structure equal to a flat vol when all pieces agree (limit)', async () => {
+    const models = {
+      flat: { kind: 'bs-hull-white', curve: 'DOM', spot: 100, vol: 0.2, a: 0.05, sigma: 0.01, rho: 0.3 },
+      term: {
+        kind: 'bs-hull-white',
+        curve: 'DOM',
+        spot: 100,
+        vol: { volTimes: [1, 5], vols: [0.2, 0.2] },
+        a: 0.05,
+        sigma: 0.01,
+        rho: 0.3,
+      },
+    };
+    const instruments = ['flat', 'term'].map((model) => ({
+      kind: 'european',
+      model,
+      type: 'call',
+      strike: 100,
+      expiry: 7,
+    }));
+    const io = capture();
+    const f = { format: 'factor-triage/quotes@1', curves: { DOM: { flat: 0.03 } }, models, instruments };
+    expect(await main(['quote', writeJson('term.json', f), '--json'], io)).toBe(0);
+    const out = JSON.parse(io.outLines.join('\n'));
+    expect(Math.abs(out.results[0].price - out.results[1].price)).toBeLessThan(1e-12);
+    const bad = {
+      ...f,
+      models: { ...models, term: { ...models.term, vol: { volTimes: [1], vols: [0.2, 0.3] } } },
+    };
+    const io2 = capture();
+    expect(await main(['quote', writeJson('term-bad.json', bad)], io2)).toBe(2);
+    expect(io2.errLines.join('\n')).toMatch(/models\.term\.vol\.volTimes/);
   });
 
   it('reports a missing file in one line with exit code 2', async () => {

@@ -8,6 +8,9 @@
  *     "models": { ID: { "kind": "black-scholes" | "heston" | "bs-hull-white" | "hull-white", ... } },
  *     "instruments": [ { "kind": "european" | "zero-bond-option" | "caplet" | "swaption", "model": ID, ... } ] }
  *
+ * Model kinds: black-scholes, heston, bs-hull-white (equity vol a number or piecewise constant `{ volTimes, vols }`),
+ * quanto (equity in a foreign currency paid at a fixed FX rate; `curve` pays, `foreignCurve` is the equity's),
+ * hull-white (rate options).
  * Implied vols: Black–Scholes (lognormal) for equity options, with the curve's zero rate to expiry; normal (Bachelier)
  * vols for caplets and swaptions, on the forward rate and annuity of the curve.
  */
@@ -25,6 +28,7 @@ import {
   bsPrice,
   hestonCos,
   makeHullWhite,
+  quantoEuropean,
   type HullWhiteModel,
 } from '../../engine/models/index.ts';
 
@@ -76,13 +80,29 @@ const modelSchema = z.discriminatedUnion('kind', [
     .object({
       kind: z.literal('bs-hull-white'),
       ...equityBase,
-      vol: nonNeg,
+      vol: z.union([
+        nonNeg,
+        z.object({ volTimes: z.array(pos).min(1), vols: z.array(nonNeg).min(1) }).strict(),
+      ]),
       a: pos,
       sigma: nonNeg,
       rho: corr,
     })
     .strict(),
   z.object({ kind: z.literal('hull-white'), curve: z.string(), a: pos, sigma: nonNeg }).strict(),
+  z
+    .object({
+      kind: z.literal('quanto'),
+      curve: z.string(),
+      foreignCurve: z.string(),
+      spot: pos,
+      divYield: num.default(0),
+      vol: nonNeg,
+      fxVol: nonNeg,
+      rho: corr,
+      fixedFx: pos,
+    })
+    .strict(),
 ]);
 
 const instrumentSchema = z.discriminatedUnion('kind', [
@@ -187,11 +207,21 @@ export function parseQuotesFile(
   }
   const f = r.data;
   const problems: string[] = [];
-  for (const [id, m] of Object.entries(f.models))
+  for (const [id, m] of Object.entries(f.models)) {
+    const have = Object.keys(f.curves).join(', ') || 'none';
     if (!f.curves[m.curve])
+      problems.push(`models.${id}.curve: no curve "${m.curve}" in curves (have: ${have})`);
+    if (m.kind === 'quanto' && !f.curves[m.foreignCurve])
+      problems.push(`models.${id}.foreignCurve: no curve "${m.foreignCurve}" in curves (have: ${have})`);
+    if (
+      m.kind === 'bs-hull-white' &&
+      typeof m.vol === 'object' &&
+      m.vol.volTimes.length !== m.vol.vols.length
+    )
       problems.push(
-        `models.${id}.curve: no curve "${m.curve}" in curves (have: ${Object.keys(f.curves).join(', ') || 'none'})`,
+        `models.${id}.vol.volTimes: must have as many entries as vol.vols (${m.vol.vols.length}), got ${m.vol.volTimes.length}`,
       );
+  }
   f.instruments.forEach((ins, i) => {
     const m = f.models[ins.model];
     if (!m) {
@@ -276,6 +306,24 @@ export function priceQuotes(f: QuotesFile): QuoteResult[] {
         const r = curve.zero(T);
         const q = m.divYield;
         let unit: number;
+        if (m.kind === 'quanto') {
+          const rf = curves[m.foreignCurve]!.zero(T);
+          unit = quantoEuropean({
+            type: ins.type,
+            S: m.spot,
+            K: ins.strike,
+            T,
+            rDomestic: r,
+            rForeign: rf,
+            q,
+            volS: m.vol,
+            volFx: m.fxVol,
+            rho: m.rho,
+            fixedFx: m.fixedFx,
+          });
+          // No implied vol column: a Black–Scholes vol on the payment curve would mix the quanto drift into the vol.
+          return { ...base, price: unit * ins.quantity };
+        }
         if (m.kind === 'black-scholes')
           unit = bsPrice({ type: ins.type, S: m.spot, K: ins.strike, T, r, q, vol: m.vol });
         else if (m.kind === 'heston')
