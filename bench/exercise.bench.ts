@@ -16,6 +16,7 @@ import {
   fitExercisePolicy,
   lognormalBermudanSource,
   pricePolicy,
+  regressionSample,
   type ExerciseSource,
 } from '../src/engine/exercise/index.ts';
 import { flatCurve } from '../src/engine/market/curve.ts';
@@ -43,13 +44,17 @@ function benchSource(
   const base = best(baseline);
   console.log(report(`${label}: no exercise right, ${sizes.pricing} paths`, base, base));
   const regSeed = exerciseSeeds.regression('bench');
-  let policy = fitExercisePolicy(source.right, source.sample(sizes.regression, regSeed), {
-    seed: regSeed,
-  }).policy;
+  const fit = () =>
+    fitExercisePolicy(
+      source.right,
+      regressionSample(source, { seed: 'bench', regressionPaths: sizes.regression }),
+      {
+        seed: regSeed,
+      },
+    ).policy;
+  let policy = fit();
   const reg = best(() => {
-    policy = fitExercisePolicy(source.right, source.sample(sizes.regression, regSeed), {
-      seed: regSeed,
-    }).policy;
+    policy = fit();
   });
   console.log(report(`${label}: regression pass, ${sizes.regression} paths`, reg, base));
   const pricing = best(() => pricePolicy(source, policy, { seed: 'bench', pricingPaths: sizes.pricing }));

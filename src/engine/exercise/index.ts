@@ -3,6 +3,7 @@ export * from './leastSquares.ts';
 export * from './basis.ts';
 export * from './continuation.ts';
 export * from './regressionPass.ts';
+export * from './concatSamples.ts';
 export * from './pricingPass.ts';
 export * from './source.ts';
 export * from './dualBound.ts';

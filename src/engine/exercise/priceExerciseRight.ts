@@ -4,7 +4,8 @@
  * probabilities and the direction of each bias stated in the result.
  *
  * Seed streams (each derived by `batchSeed` from the random module, so each can be recomputed alone):
- *   regression paths `batchSeed(seed + '|exercise-regression', 0)`,
+ *   regression batch c `batchSeed(seed + '|exercise-regression', c)` (drawn batch by batch, kept only at the
+ *   exercise dates: memory paths × dates × state size),
  *   pricing batch b  `batchSeed(seed + '|exercise-pricing', b)`,
  *   dual outer paths `batchSeed(seed + '|exercise-dual', 0)`,
  *   inner paths of outer path p at date j `batchSeed(seed + '|exercise-inner|' + j, p)`.
@@ -12,11 +13,18 @@
  */
 import { fail, requirePositive } from '../errors.ts';
 import { batchSeed } from '../random/index.ts';
+import { concatSamples } from './concatSamples.ts';
 import { estimateDualGap } from './dualBound.ts';
 import { meanAndSe, mergeExerciseSums, pricingSums } from './pricingPass.ts';
 import { fitExercisePolicy } from './regressionPass.ts';
 import type { ExerciseSource } from './source.ts';
-import type { DualEstimate, ExerciseEstimate, ExercisePolicy, ExerciseSums } from './types.ts';
+import type {
+  DualEstimate,
+  ExerciseEstimate,
+  ExercisePolicy,
+  ExerciseSample,
+  ExerciseSums,
+} from './types.ts';
 
 /** Settings of {@link priceExerciseRight}. */
 export interface ExercisePricingSettings {
@@ -51,7 +59,7 @@ export interface ExercisePricingResult {
 
 /** Seed strings of the passes, as documented above. */
 export const exerciseSeeds = {
-  regression: (seed: string | number): string => batchSeed(`${seed}|exercise-regression`, 0),
+  regression: (seed: string | number, c = 0): string => batchSeed(`${seed}|exercise-regression`, c),
   pricing: (seed: string | number, b: number): string => batchSeed(`${seed}|exercise-pricing`, b),
   dualOuter: (seed: string | number): string => batchSeed(`${seed}|exercise-dual`, 0),
   dualInner: (seed: string | number, p: number, j: number): string =>
@@ -66,6 +74,22 @@ export function biasNote(holder: 'holder' | 'issuer'): string {
     : 'The exercise policy is estimated, hence sub-optimal for the issuer: the policy estimate of the holder value is ' +
         'biased high (an upper bound); the dual estimate is a lower bound; the true value lies between them up to ' +
         'Monte Carlo error.';
+}
+
+/** Draws the regression paths batch by batch (`batchSize` each) and keeps them at the exercise dates only. */
+export function regressionSample(
+  source: ExerciseSource,
+  settings: Pick<ExercisePricingSettings, 'seed' | 'regressionPaths' | 'batchSize'>,
+): ExerciseSample {
+  const batchSize = settings.batchSize ?? 10_000;
+  requirePositive('exercise.batchSize', batchSize);
+  const parts: ExerciseSample[] = [];
+  for (let c = 0, done = 0; done < settings.regressionPaths; c++) {
+    const n = Math.min(batchSize, settings.regressionPaths - done);
+    parts.push(source.sample(n, exerciseSeeds.regression(settings.seed, c)));
+    done += n;
+  }
+  return concatSamples(parts);
 }
 
 /** Runs the pricing pass of an already fitted policy (e.g. to verify a saved study). */
@@ -107,7 +131,7 @@ export function priceExerciseRight(
   const right = source.right;
   const t0 = performance.now();
   const regSeed = exerciseSeeds.regression(settings.seed);
-  const reg = fitExercisePolicy(right, source.sample(settings.regressionPaths, regSeed), {
+  const reg = fitExercisePolicy(right, regressionSample(source, settings), {
     seed: regSeed,
     degree: settings.degree,
     includeExerciseValue: settings.includeExerciseValue,
