@@ -4,30 +4,12 @@
  * calendar days, weekdays, weeks, months or years (no holiday calendar; common practice for a first-cut model).
  */
 import { fail } from '../errors.ts';
+import { civilFromDays, daysFromCivil, daysInMonth, parseIsoDate } from '../market/dates.ts';
 import type { DateInput, ScheduleInput } from './types.ts';
 
-const ISO = /^(\d{4})-(\d{2})-(\d{2})$/;
-const DAY_MS = 86_400_000;
-
-/** Day number (days since 1970-01-01, UTC) of an ISO date; fails naming `field` when it is not a real date. */
+/** Day number (days since 1970-01-01) of an ISO date; fails naming `field` when it is not a real date. */
 export function isoDayNumber(field: string, text: string): number {
-  const m = ISO.exec(text);
-  if (m) {
-    const y = Number(m[1]);
-    const mo = Number(m[2]);
-    const d = Number(m[3]);
-    const ms = Date.UTC(y, mo - 1, d);
-    const back = new Date(ms);
-    if (back.getUTCFullYear() === y && back.getUTCMonth() === mo - 1 && back.getUTCDate() === d)
-      return ms / DAY_MS;
-  }
-  return fail(
-    'E_BAD_DATE',
-    field,
-    'must be an ISO date YYYY-MM-DD or a year fraction',
-    text,
-    'write e.g. 2027-06-30 or 1.5',
-  );
+  return parseIsoDate(text, field).dayNumber;
 }
 
 /** Converts a date input to a year fraction (ACT/365F) from the valuation date (a day number, or null if absent). */
@@ -53,13 +35,17 @@ export function toYearFraction(field: string, value: DateInput, valuationDay: nu
 
 const STEP = /^([1-9]\d{0,3})([DBWMY])$/;
 
+/** Adds months to a day number keeping the anchor's day of month, clipped to the month's end (common practice). */
 function addMonths(day: number, months: number, anchorDom: number): number {
-  const d = new Date(day * DAY_MS);
-  const y = d.getUTCFullYear();
-  const m = d.getUTCMonth() + months;
-  const last = new Date(Date.UTC(y, m + 1, 0)).getUTCDate();
-  return Date.UTC(y, m, Math.min(anchorDom, last)) / DAY_MS;
+  const c = civilFromDays(day);
+  const m0 = c.month - 1 + months;
+  const year = c.year + Math.floor(m0 / 12);
+  const month = (((m0 % 12) + 12) % 12) + 1;
+  return daysFromCivil(year, month, Math.min(anchorDom, daysInMonth(year, month)));
 }
+
+/** Day of the week of a day number, 0 = Sunday (1970-01-01 was a Thursday). */
+const weekday = (day: number): number => (((day + 4) % 7) + 7) % 7;
 
 /**
  * Expands a schedule to sorted, distinct year fractions. Month and year steps roll from the start date and keep its
@@ -83,7 +69,7 @@ export function expandSchedule(field: string, s: ScheduleInput, valuationDay: nu
     if (typeof s.start === 'string' && typeof s.end === 'string' && valuationDay !== null) {
       const d0 = isoDayNumber(`${field}.start`, s.start);
       const d1 = isoDayNumber(`${field}.end`, s.end);
-      const dom = new Date(d0 * DAY_MS).getUTCDate();
+      const dom = civilFromDays(d0).day;
       let bday = d0;
       for (let i = 1; times.length < maxDates; i++) {
         let d: number;
@@ -96,7 +82,7 @@ export function expandSchedule(field: string, s: ScheduleInput, valuationDay: nu
           let k = 0;
           while (k < n) {
             bday += 1;
-            const wd = new Date(bday * DAY_MS).getUTCDay();
+            const wd = weekday(bday);
             if (wd !== 0 && wd !== 6) k++;
           }
           d = bday;

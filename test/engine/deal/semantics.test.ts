@@ -169,7 +169,7 @@ describe('deal files: every problem names its field', () => {
       ...memoryDeal,
       schedules: { ...memoryDeal.schedules, obs: { dates: ['2027-02-30'] } },
     });
-    expect(c).toContain('E_BAD_DATE deal.schedules.obs.dates[0]');
+    expect(c).toContain('E_DATE_DAY deal.schedules.obs.dates[0]');
     const c2 = codes({
       ...memoryDeal,
       schedules: { ...memoryDeal.schedules, obs: { dates: ['2027-02-01'] } },
@@ -229,5 +229,17 @@ describe('non-finite amounts', () => {
     const v = makeDealEvaluator(compileDeal(one('1 / ALDR', 'ALDR > 0')))(batch);
     expect(Number.isFinite(v[0]!) && Number.isFinite(v[1]!)).toBe(true);
     expect(v[0]).toBeCloseTo(100 * 0.01 * Math.exp(-0.1), 12);
+  });
+});
+
+describe('weekday schedules', () => {
+  it('a 1B schedule skips Saturdays and Sundays (2026-11-23 is a Monday; common practice)', () => {
+    const c = compileDeal({
+      ...memoryDeal,
+      valuationDate: '2026-11-23',
+      schedules: { ...memoryDeal.schedules, obs: { start: '2026-11-23', end: '2026-12-07', every: '1B' } },
+    });
+    // Tue 24 … Fri 27, Mon 30, Tue 1 … Fri 4, Mon 7 December
+    expect(c.schedules.obs!.map((t) => Math.round(t * 365))).toEqual([1, 2, 3, 4, 7, 8, 9, 10, 11, 14]);
   });
 });
