@@ -1,4 +1,4 @@
-/** Analytic pricing models: Black–Scholes family, Bachelier, Heston (COS, Lewis), Hull–White, BS–Hull–White, quanto. */
+/** Analytic pricing models: Black–Scholes family, Bachelier, Heston (COS, Lewis), Hull–White (closed forms and trinomial tree), BS–Hull–White, quanto. */
 export * from './blackScholes.ts';
 export * from './bachelier.ts';
 export * from './heston.ts';
@@ -8,3 +8,4 @@ export * from './hestonLewis.ts';
 export * from './hullWhite.ts';
 export * from './bsHullWhite.ts';
 export * from './quanto.ts';
+export * from './hullWhiteTree.ts';
