@@ -115,3 +115,28 @@ describe('deals priced through the simulation runner', () => {
     expect(Math.abs(s.mean(0) - s.mean(1))).toBeLessThan(1e-12);
   });
 });
+
+describe('deals in worker threads', () => {
+  it('two worker threads give the same sums as the in-process run, bit for bit', async () => {
+    const { makeNodeWorkerExecutor } = await import('../../../src/engine/simulation/runner.node.ts');
+    const compiled = [compileDeal(quantoDeal('DOM per ASH'))];
+    const description = { deals: compiled };
+    const spec = {
+      variants: [variant],
+      payoff: { factory: dealPayoffFactoryUrl(), description },
+      grid: { eventTimes: eventTimes(description), maxStep: 0.5 },
+      seed: 'deal-workers',
+      maxPaths: 8192,
+      batchSize: 2048,
+    };
+    const exec = makeNodeWorkerExecutor(2);
+    try {
+      const a = await runSimulation(spec, exec);
+      const b = await runSimulation(spec, inProcessExecutor());
+      expect(resultStats(a).mean(0)).toBe(resultStats(b).mean(0));
+      expect(resultStats(a).se(0)).toBe(resultStats(b).se(0));
+    } finally {
+      await exec.close();
+    }
+  });
+});
