@@ -129,6 +129,20 @@ describe('events, state and early termination follow the documented order', () =
     expect(second.features['rate:DOM']![1]).toBe(0.05);
     expect(second.by).toBe('issuer');
   });
+
+  it('under stochastic volatility the regression features include the variance', () => {
+    const b = handBatch([
+      [100, 90, 75, 60],
+      [100, 90, 75, 60],
+    ]);
+    const withVar: PathBatch = { ...b, bond: b.bond, variance: { ALDR: new Float64Array(8).fill(0.04) } };
+    const det = evaluateDetailed(
+      compileDeal({ ...memoryDeal, exercise: [{ on: 'calls', by: 'holder', amount: '1' }] }),
+      withVar,
+    );
+    expect(det.exercise[0]!.features['var:ALDR']![0]).toBe(0.04);
+    expect(det.exercise[0]!.by).toBe('holder');
+  });
 });
 
 describe('deal files: every problem names its field', () => {
