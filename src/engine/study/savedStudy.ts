@@ -29,10 +29,24 @@ export function checkStudyHash(saved: SavedStudy): { ok: boolean; stored: string
   return { ok: computed === saved.hash, stored: saved.hash, computed };
 }
 
-/** The part of a study that must be bit-identical on a re-run: everything but timings and the hash. */
+function dropSeconds(v: unknown): unknown {
+  if (Array.isArray(v)) return v.map(dropSeconds);
+  if (v !== null && typeof v === 'object') {
+    const out: Record<string, unknown> = {};
+    for (const [k, x] of Object.entries(v as Record<string, unknown>))
+      if (k !== 'seconds') out[k] = dropSeconds(x);
+    return out;
+  }
+  return v;
+}
+
+/**
+ * The part of a study that must be bit-identical on a re-run: everything but the hash and the wall-clock
+ * timings (the `timings` section and every `seconds` field, e.g. each variant's calibration time).
+ */
 export function comparablePart(saved: SavedStudy): unknown {
   const { hash: _h, timings: _t, ...rest } = saved;
-  return JSON.parse(canonicalJson(rest)) as unknown;
+  return dropSeconds(JSON.parse(canonicalJson(rest)));
 }
 
 /** The first place two plain values differ, as a field path with both values; null when identical. */

@@ -116,7 +116,16 @@ export function checkSettings(raw: unknown): StudySettings {
   if (!r.success) {
     const i = r.error.issues[0]!;
     const field = ['settings', ...i.path.map(String)].join('.');
-    fail('E_SETTINGS', field, i.message, undefined, 'see `factor-triage study --help` for the settings');
+    let value: unknown = raw;
+    for (const k of i.path)
+      value =
+        value !== null && typeof value === 'object'
+          ? (value as Record<PropertyKey, unknown>)[k as PropertyKey]
+          : undefined;
+    const rule = i.message
+      .replace(/^Too small: expected number to be >0$/, 'must be > 0')
+      .replace(/^Too small: expected number to be >=0$/, 'must be >= 0');
+    fail('E_SETTINGS', field, rule, value, 'see `factor-triage study --help` for the settings');
   }
   const s = r.data as StudySettings;
   if (s.firstPaths > s.paths)
