@@ -89,7 +89,7 @@ describe('factor-triage deal', () => {
     );
     expect(code, io.errLines.join('\n')).toBe(0);
     const text = io.outLines.join('\n');
-    expect(text).toMatch(/value in DOM \(notional 1000000\), 4096 paths/);
+    expect(text).toMatch(/demo-market.json \(2026-11-23\): value in DOM \(notional 1000000\), 4096 paths/);
     expect(text).toMatch(/\d+\.\d\d ± \d+\.\d\d/);
     expect(text).toMatch(/independent validation/);
   });

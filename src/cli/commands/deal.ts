@@ -18,11 +18,11 @@ import { toPlainError } from '../../engine/errors.ts';
 export const summary = 'Check a deal file and show what it depends on; price it on a market snapshot.';
 export const usage = [
   'usage: factor-triage deal check FILE... [--json]',
-  '       factor-triage deal price FILE MARKET [--paths N] [--seed S] [--step YEARS] [--ladder] [--json]',
+  '       factor-triage deal price FILE MARKET... [--paths N] [--seed S] [--step YEARS] [--ladder] [--json]',
   '',
   '  check   validate deal files (format "factor-triage/deal@1") and print their analysis, or every problem',
   '          with its field path and character position',
-  '  price   calibrate the model the rules require to MARKET (format "factor-triage/market@1") and price by',
+  '  price   calibrate the model the rules require to each MARKET (format "factor-triage/market@1") and price by',
   '          Monte Carlo: --paths (default 32768), --seed (default 1), --step largest time step in years',
   '          (default 0.25), --ladder prices every variant of the factor ladder instead of the base one',
 ].join('\n');
@@ -129,8 +129,8 @@ async function price(args: string[], io: CliIo): Promise<number> {
   const positional = args.filter(
     (a, i) => !a.startsWith('--') && !(i > 0 && ['--paths', '--seed', '--step'].includes(args[i - 1]!)),
   );
-  const [dealFile, marketFile] = positional;
-  if (!dealFile || !marketFile) {
+  const [dealFile, ...marketFiles] = positional;
+  if (!dealFile || marketFiles.length === 0) {
     io.err(usage);
     return EXIT.badInput;
   }
@@ -148,8 +148,7 @@ async function price(args: string[], io: CliIo): Promise<number> {
     return EXIT.badInput;
   }
   const raw = await readJson(dealFile, io);
-  const rawMarket = await readJson(marketFile, io);
-  if (raw === undefined || rawMarket === undefined) return EXIT.badInput;
+  if (raw === undefined) return EXIT.badInput;
   const r = checkDeal(raw);
   if (!r.compiled) {
     for (const i of r.issues) io.err(`${dealFile}: ${i.message}`);
@@ -164,69 +163,92 @@ async function price(args: string[], io: CliIo): Promise<number> {
     import('../../engine/study/ladderCalibration.ts'),
     import('../../engine/simulation/index.ts'),
   ]);
-  let snapshot;
-  try {
-    snapshot = parseSnapshot(rawMarket).snapshot;
-  } catch (e) {
-    io.err(`${marketFile}: ${toPlainError(e).message}`);
-    return EXIT.badInput;
-  }
   const rules = applyRules(analysis);
   const required = rules.factors.filter((f) => f.status === 'required').map((f) => f.factor);
   const candidates = args.includes('--ladder') ? candidateFactors(rules) : [];
-  io.progress(0, 'calibrating');
-  const ladder = calibrateLadder({ snapshot, analysis, candidates, required, mode: 'fair', scheme: 'qe' });
-  const variants = ladder.variants.filter((v) => v.role === 'ladder');
-  io.progress(0.3, 'pricing');
-  const description = { deals: [compiled] };
-  const res = await sim.runSimulation(
-    {
-      variants: variants.map((v) => v.spec),
-      payoff: { factory: dealPayoffFactoryUrl(), description },
-      grid: { eventTimes: eventTimes(description), maxStep: step },
-      seed,
-      maxPaths: paths,
-    },
-    sim.inProcessExecutor(),
-    { onProgress: (p) => io.progress(0.3 + 0.7 * p.fraction, 'pricing') },
-  );
-  const stats = sim.resultStats(res);
-  const rows = variants.map((v, i) => ({
-    variant: v.id,
-    label: v.label,
-    value: stats.mean(i),
-    se: stats.se(i),
-  }));
-  if (args.includes('--json')) {
+  const json = args.includes('--json');
+  if (!json) {
+    for (const l of analysisLines(analysis)) io.out(l);
+    io.out('');
+    for (const f of rules.factors) io.out(`  ${f.factor.padEnd(14)} ${f.status.padEnd(10)} ${f.reason}`);
+  }
+  const results: unknown[] = [];
+  let bad = false;
+  for (const [m, marketFile] of marketFiles.entries()) {
+    const rawMarket = await readJson(marketFile, io);
+    if (rawMarket === undefined) {
+      bad = true;
+      continue;
+    }
+    let snapshot;
+    try {
+      snapshot = parseSnapshot(rawMarket).snapshot;
+    } catch (e) {
+      io.err(`${marketFile}: ${toPlainError(e).message}`);
+      bad = true;
+      continue;
+    }
+    const part = (f: number) => (m + f) / marketFiles.length;
+    io.progress(part(0), 'calibrating');
+    const ladder = calibrateLadder({ snapshot, analysis, candidates, required, mode: 'fair', scheme: 'qe' });
+    const variants = ladder.variants.filter((v) => v.role === 'ladder');
+    const description = { deals: [compiled] };
+    const res = await sim.runSimulation(
+      {
+        variants: variants.map((v) => v.spec),
+        payoff: { factory: dealPayoffFactoryUrl(), description },
+        grid: { eventTimes: eventTimes(description), maxStep: step },
+        seed,
+        maxPaths: paths,
+      },
+      sim.inProcessExecutor(),
+      { onProgress: (p) => io.progress(part(0.3 + 0.7 * p.fraction), 'pricing') },
+    );
+    const stats = sim.resultStats(res);
+    const rows = variants.map((v, i) => ({
+      variant: v.id,
+      label: v.label,
+      value: stats.mean(i),
+      se: stats.se(i),
+    }));
+    results.push({
+      market: marketFile,
+      date: snapshot.date,
+      paths: res.paths,
+      rows,
+      warnings: ladder.warnings,
+    });
+    if (!json) {
+      io.out('');
+      io.out(
+        `${marketFile} (${snapshot.date}): value in ${compiled.currency} (notional ${compiled.notional}), ${res.paths} paths, seed ${seed}:`,
+      );
+      for (const row of rows)
+        io.out(`  ${row.label.padEnd(48)} ${row.value.toFixed(2).padStart(14)} ± ${row.se.toFixed(2)}`);
+      for (const w of ladder.warnings) io.out(`  warning: ${w}`);
+    }
+  }
+  if (json) {
     io.out(
       JSON.stringify(
         {
           deal: compiled.name,
           currency: compiled.currency,
-          paths: res.paths,
           seed,
-          rows,
           rules: rules.factors,
+          results,
           caution: CAUTION,
         },
         null,
         2,
       ),
     );
-    return EXIT.ok;
+  } else {
+    if (compiled.exercise.length > 0)
+      io.out('note: exercise rights are not in these values (they need the early-exercise pricer)');
+    io.out(CAUTION);
   }
-  for (const l of analysisLines(analysis)) io.out(l);
-  io.out('');
-  for (const f of rules.factors) io.out(`  ${f.factor.padEnd(14)} ${f.status.padEnd(10)} ${f.reason}`);
-  io.out('');
-  io.out(`value in ${compiled.currency} (notional ${compiled.notional}), ${res.paths} paths, seed ${seed}:`);
-  for (const row of rows)
-    io.out(`  ${row.label.padEnd(48)} ${row.value.toFixed(2).padStart(14)} ± ${row.se.toFixed(2)}`);
-  if (compiled.exercise.length > 0)
-    io.out('  note: exercise rights are not in these values (they need the early-exercise pricer)');
-  for (const w of ladder.warnings) io.out(`  warning: ${w}`);
-  io.out(CAUTION);
-  return EXIT.ok;
+  return bad ? EXIT.badInput : EXIT.ok;
 }
 
 export async function run(args: string[], io: CliIo): Promise<number> {
