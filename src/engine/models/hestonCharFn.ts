@@ -178,3 +178,95 @@ export function hestonCharFnGrid(
     im[j] = m * Math.sin(a);
   }
 }
+
+/** Derivatives of the exponent E = C + D v₀ = ln φ(u) with respect to each Heston parameter. */
+export interface HestonExponentGradient {
+  /** E itself. */
+  E: Complex;
+  v0: Complex;
+  kappa: Complex;
+  theta: Complex;
+  sigma: Complex;
+  rho: Complex;
+}
+
+/**
+ * Analytic gradient of ln φ(u) = C + D v₀ (little-trap form above) by the chain rule through ξ, d, m = (ξ − d)/σ²,
+ * g₂, e = e^{−dT}, D, w and L = ln(1 + w) (forward-mode differentiation written out; the same route as the analytic
+ * Heston gradient of Cui, del Baño Rollín & Germano (2017), 'Full and fast calibration of the Heston stochastic
+ * volatility model', Eur. J. Oper. Res. 263(2), which differentiates the same characteristic function).
+ * ∂E/∂v₀ = D and ∂E/∂θ = κT m − (2κ/σ²) L (C is linear in θ). Real u only is needed by COS, complex u is accepted.
+ */
+export function hestonExponentGradient(params: HestonParams, T: number, u: Complex): HestonExponentGradient {
+  const { v0, kappa, theta, sigma, rho } = params;
+  const one = Complex.ONE;
+  const iu = Complex.I.mul(u);
+  const s2 = sigma * sigma;
+  const xi = Complex.of(kappa).sub(iu.scale(rho * sigma));
+  const q = iu.add(u.mul(u));
+  const d = xi.mul(xi).add(q.scale(s2)).sqrt();
+  const p = xi.add(d);
+  const m = q.neg().div(p);
+  const g = m.scale(s2).div(p);
+  const e = d.scale(-T).exp();
+  const oneMinusE = one.sub(e);
+  const oneMinusGE = one.sub(g.mul(e));
+  const oneMinusG = one.sub(g);
+  const D = m.mul(oneMinusE).div(oneMinusGE);
+  const w = g.mul(oneMinusE).div(oneMinusG);
+  const L =
+    w.abs() < 1e-5
+      ? w.sub(w.mul(w).scale(0.5)).add(
+          w
+            .mul(w)
+            .mul(w)
+            .scale(1 / 3),
+        )
+      : w.addReal(1).log();
+  const kt = kappa * theta;
+  const C = m.scale(kt * T).sub(L.scale((2 * kt) / s2));
+  const E = C.add(D.scale(v0));
+
+  /** dE for the tangent (dξ, dσ, dκθ, d(2κθ/σ²)), with q independent of the parameters. */
+  const tangent = (dXi: Complex, dSigma: number, dKt: number, dCoef: number): Complex => {
+    const dd2 = xi
+      .mul(dXi)
+      .scale(2)
+      .add(q.scale(2 * sigma * dSigma)); // d(d²)
+    const dD = dd2.div(d.scale(2)); // d(d)
+    const dp = dXi.add(dD);
+    const dm = q.mul(dp).div(p.mul(p)); // m = −q/p
+    // g = m σ²/p
+    const dg = dm
+      .scale(s2)
+      .add(m.scale(2 * sigma * dSigma))
+      .div(p)
+      .sub(m.scale(s2).mul(dp).div(p.mul(p)));
+    const de = e.mul(dD).scale(-T);
+    // D = m(1 − e)/(1 − g e)
+    const dGE = dg.mul(e).add(g.mul(de));
+    const dDcoef = dm
+      .mul(oneMinusE)
+      .sub(m.mul(de))
+      .div(oneMinusGE)
+      .add(m.mul(oneMinusE).mul(dGE).div(oneMinusGE.mul(oneMinusGE)));
+    // w = g(1 − e)/(1 − g)
+    const dw = dg
+      .mul(oneMinusE)
+      .sub(g.mul(de))
+      .div(oneMinusG)
+      .add(g.mul(oneMinusE).mul(dg).div(oneMinusG.mul(oneMinusG)));
+    const dL = dw.div(w.addReal(1));
+    const dC = m
+      .scale(dKt * T)
+      .add(dm.scale(kt * T))
+      .sub(L.scale(dCoef))
+      .sub(dL.scale((2 * kt) / s2));
+    return dC.add(dDcoef.scale(v0));
+  };
+  const dKappa = tangent(Complex.ONE, 0, theta, (2 * theta) / s2);
+  const dSigma = tangent(iu.scale(-rho), 1, 0, (-4 * kt) / (s2 * sigma));
+  const dRho = tangent(iu.scale(-sigma), 0, 0, 0);
+  const dTheta = m.scale(kappa * T).sub(L.scale((2 * kappa) / s2));
+  return { E, v0: D, kappa: dKappa, theta: dTheta, sigma: dSigma, rho: dRho };
+}

@@ -21,7 +21,8 @@ import { fail, requirePositive } from '../errors.ts';
 import type { HestonParams } from '../simulation/types.ts';
 import type { OptionType } from './blackScholes.ts';
 import { type HestonMarket, validateHeston } from './heston.ts';
-import { hestonExponentGrid } from './hestonCharFn.ts';
+import { Complex } from '../math/complex.ts';
+import { hestonExponentGradient, hestonExponentGrid } from './hestonCharFn.ts';
 
 /** Options of the COS pricer. */
 export interface CosOptions {
@@ -192,9 +193,9 @@ function expand(
 export const HESTON_GRADIENT_PARAMS = ['v0', 'kappa', 'theta', 'sigma', 'rho'] as const;
 
 /**
- * ∂A_k/∂p for p in (v0, κ, θ, σ, ρ). v0: ∂φ/∂v0 = D φ (exact). θ: C is linear in θ, so ∂φ/∂θ = (C/θ) φ (exact).
- * κ, σ, ρ: central differences of the exponent C + D v₀ at fixed truncation (relative step 1e-5), which keeps the
- * gradient consistent with the truncated series the price uses.
+ * ∂A_k/∂p for p in (v0, κ, θ, σ, ρ): ∂φ/∂p = (∂E/∂p) φ with E = ln φ, analytic (`hestonExponentGradient`), at the
+ * fixed truncation (a, b, N) of the price, so the gradient is that of the truncated series. With `onlyV0` only
+ * ∂φ/∂v0 = D φ (from the inlined grid).
  */
 function gradientCoefficients(
   m: HestonMarket,
@@ -205,64 +206,30 @@ function gradientCoefficients(
 ): Float64Array[] {
   const len = u.length;
   const p = m.params;
+  const names = onlyV0 ? (['v0'] as const) : HESTON_GRADIENT_PARAMS;
+  const outs = names.map(() => new Float64Array(len));
   const eRe = new Float64Array(len);
   const eIm = new Float64Array(len);
   const dRe = new Float64Array(len);
   const dIm = new Float64Array(len);
   hestonExponentGrid(p, m.T, u, eRe, eIm, dRe, dIm);
-  const exps: { re: Float64Array; im: Float64Array }[] = [];
-  // v0
-  exps.push({ re: dRe, im: dIm });
-  // κ, θ, σ, ρ
-  for (const name of onlyV0 ? [] : (['kappa', 'theta', 'sigma', 'rho'] as const)) {
-    if (name === 'theta') {
-      // ∂(C + D v0)/∂θ = C/θ = (E − D v0)/θ; for θ = 0 fall back to a one-sided difference.
-      if (p.theta > 0) {
-        const re = new Float64Array(len);
-        const im = new Float64Array(len);
-        for (let j = 0; j < len; j++) {
-          re[j] = (eRe[j]! - p.v0 * dRe[j]!) / p.theta;
-          im[j] = (eIm[j]! - p.v0 * dIm[j]!) / p.theta;
-        }
-        exps.push({ re, im });
-        continue;
-      }
+  for (let j = 0; j < len; j++) {
+    const mag = Math.exp(eRe[j]!);
+    const ph = eIm[j]! - u[j]! * a;
+    // φ e^{−iua}
+    const cr = mag * Math.cos(ph);
+    const ci = mag * Math.sin(ph);
+    if (onlyV0) {
+      outs[0]![j] = (2 / width) * (dRe[j]! * cr - dIm[j]! * ci);
+      continue;
     }
-    const base = p[name];
-    let h = 1e-5 * Math.max(Math.abs(base), 1e-2);
-    if (name === 'rho') h = Math.min(h, Math.max(1e-9, (1 - Math.abs(base)) * 0.5));
-    const lo = name === 'theta' ? base : base - h;
-    const hi = base + h;
-    const pr = new Float64Array(len);
-    const pi = new Float64Array(len);
-    const mr = new Float64Array(len);
-    const mi = new Float64Array(len);
-    hestonExponentGrid({ ...p, [name]: hi }, m.T, u, pr, pi);
-    hestonExponentGrid({ ...p, [name]: lo }, m.T, u, mr, mi);
-    const re = new Float64Array(len);
-    const im = new Float64Array(len);
-    const span = hi - lo;
-    for (let j = 0; j < len; j++) {
-      re[j] = (pr[j]! - mr[j]!) / span;
-      // unwrap the imaginary parts: both come from atan2, so they may differ by 2π
-      let di = pi[j]! - mi[j]!;
-      di -= 2 * Math.PI * Math.round(di / (2 * Math.PI));
-      im[j] = di / span;
-    }
-    exps.push({ re, im });
+    const gr = hestonExponentGradient(p, m.T, Complex.of(u[j]!));
+    names.forEach((name, k) => {
+      const z = gr[name];
+      outs[k]![j] = (2 / width) * (z.re * cr - z.im * ci);
+    });
   }
-  // ∂A_k = (2/width) Re[(∂E) φ e^{−iu a}]
-  return exps.map(({ re, im }) => {
-    const out = new Float64Array(len);
-    for (let j = 0; j < len; j++) {
-      const mag = Math.exp(eRe[j]!);
-      const ph = eIm[j]! - u[j]! * a;
-      const cr = mag * Math.cos(ph);
-      const ci = mag * Math.sin(ph);
-      out[j] = (2 / width) * (re[j]! * cr - im[j]! * ci);
-    }
-    return out;
-  });
+  return outs;
 }
 
 /**
@@ -387,8 +354,7 @@ export interface HestonSliceGradient extends HestonSliceResult {
 
 /**
  * Heston slice prices and their gradient with respect to v0, κ, θ, σ, ρ at fixed truncation (a, b, N), for
- * calibration. v0 and θ: analytic derivatives of the characteristic function; κ, σ, ρ: central differences of its
- * exponent (see `gradientCoefficients`). The call and put share the gradient (parity does not depend on the parameters).
+ * calibration: analytic derivatives of the characteristic function (see `hestonExponentGradient`). The call and put share the gradient (parity does not depend on the parameters).
  */
 export function hestonCosSliceWithGradient(input: HestonSliceInput): HestonSliceGradient {
   validateHeston('heston', input);
