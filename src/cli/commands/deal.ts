@@ -189,6 +189,11 @@ async function price(args: string[], io: CliIo): Promise<number> {
       continue;
     }
     const part = (f: number) => (m + f) / marketFiles.length;
+    const dealDate = (raw as { valuationDate?: string }).valuationDate;
+    const dateNote =
+      dealDate !== undefined && dealDate !== snapshot.date
+        ? `the deal's valuation date ${dealDate} differs from the market date ${snapshot.date}: deal times are measured from ${dealDate}`
+        : null;
     io.progress(part(0), 'calibrating');
     const ladder = calibrateLadder({ snapshot, analysis, candidates, required, mode: 'fair', scheme: 'qe' });
     const variants = ladder.variants.filter((v) => v.role === 'ladder');
@@ -226,6 +231,7 @@ async function price(args: string[], io: CliIo): Promise<number> {
       for (const row of rows)
         io.out(`  ${row.label.padEnd(48)} ${row.value.toFixed(2).padStart(14)} ± ${row.se.toFixed(2)}`);
       for (const w of ladder.warnings) io.out(`  warning: ${w}`);
+      if (dateNote) io.out(`  warning: ${dateNote}`);
     }
   }
   if (json) {
