@@ -113,7 +113,7 @@ describe('Bermudan put under Black–Scholes by Longstaff–Schwartz', () => {
       degree: 3,
       regressionPaths: 20_000,
       pricingPaths: 20_000,
-      dual: { outerPaths: full ? 500 : 60, innerPaths: full ? 500 : 200 },
+      dual: { outerPaths: full ? 500 : 40, innerPaths: full ? 500 : 100 },
     });
     const d = res.estimate.dual!;
     const info = `primal ${res.estimate.primal.value} ± ${res.estimate.primal.se}; dual ${d.value} ± ${d.se}, gap ${d.gap} ± ${d.gapSe}`;
@@ -121,6 +121,44 @@ describe('Bermudan put under Black–Scholes by Longstaff–Schwartz', () => {
     expect(d.value + 3 * d.se, info).toBeGreaterThan(4.472 - 3 * 0.01);
     expect(d.innerPaths).toBeGreaterThan(0);
     expect(d.millis).toBeGreaterThan(0);
+  });
+
+  it('with one exercise date equals the Black–Scholes European put within 3 SE', () => {
+    // Second method in the project: bsPrice (Black & Scholes 1973 closed form); LS Table 1 European column 3.844.
+    const src = lognormalBermudanSource({
+      type: 'put',
+      spot: 36,
+      strike: 40,
+      rate: 0.06,
+      vol: 0.2,
+      exerciseTimes: [1],
+    });
+    const r = priceExerciseRight(src, {
+      seed: 13,
+      regressionPaths: 5000,
+      pricingPaths: full ? 400_000 : 100_000,
+    });
+    const exact = bsPrice({ type: 'put', S: 36, K: 40, T: 1, r: 0.06, q: 0, vol: 0.2 });
+    const { value, se } = r.estimate.primal;
+    expect(se).toBeLessThan(0.02);
+    expect(Math.abs(value - exact), `LSM ${value} ± ${se}, closed form ${exact}`).toBeLessThan(3 * se);
+  });
+
+  it('with zero volatility exercises at once when waiting only loses interest (limit σ = 0)', () => {
+    // Limit: S(t) = S0 e^{rt}, so the deflated exercise value (K − S0 e^{rt}) e^{−rt} = K e^{−rt} − S0 falls with t
+    // and the first date is optimal: value K e^{−r t1} − S0 exactly (common practice).
+    const src = lognormalBermudanSource({
+      type: 'put',
+      spot: 36,
+      strike: 40,
+      rate: 0.06,
+      vol: 0,
+      exerciseTimes: equallySpacedTimes(1, 50),
+    });
+    const r = priceExerciseRight(src, { seed: 19, regressionPaths: 500, pricingPaths: 500 });
+    const exact = 40 * Math.exp(-0.06 * 0.02) - 36;
+    expect(Math.abs(r.estimate.primal.value - exact)).toBeLessThan(1e-12);
+    expect(r.estimate.exerciseProbability[0]!.probability).toBe(1);
   });
 
   it('a put that can never be in the money is never exercised and is worth nothing', () => {
