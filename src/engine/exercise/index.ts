@@ -12,3 +12,4 @@ export * from './sources/lognormalBermudan.ts';
 export * from './sources/hullWhiteBermudanSwaption.ts';
 export * from './sources/dealExerciseSource.ts';
 export * from './exercisePathEvaluator.ts';
+export * from './priceDealExercise.ts';

@@ -5,8 +5,10 @@ import { evaluateDetailed } from '../../../src/engine/deal/dealEvaluator.ts';
 import type { DealInput } from '../../../src/engine/deal/types.ts';
 import { dealExerciseSource } from '../../../src/engine/exercise/sources/dealExerciseSource.ts';
 import {
+  compareExerciseResults,
   exerciseSeeds,
   makeExercisePathEvaluator,
+  priceDealExercise,
   priceExerciseRight,
 } from '../../../src/engine/exercise/index.ts';
 import type { ExercisePolicy } from '../../../src/engine/exercise/index.ts';
@@ -172,6 +174,27 @@ describe('early exercise of deals written in the deal language', () => {
     // A policy for other dates is refused with the field named.
     const other = { ...saved, dates: saved.dates.map((d) => ({ ...d, time: d.time + 0.5 })) };
     expect(() => makeExercisePathEvaluator(compiled, other)).toThrow(/exercise\.policy\.dates/);
+  });
+
+  it('re-running both passes and the dual for a deal reproduces the saved result bit for bit', () => {
+    const input = {
+      compiled: compileDeal(callableZero(68)),
+      variant: hwVariant(0.08, 0.01, 0.1),
+      maxStep: 0.25,
+      settings: {
+        seed: 'verify-me',
+        regressionPaths: 2000,
+        pricingPaths: 3000,
+        batchSize: 1000,
+        dual: { outerPaths: 5, innerPaths: 10 },
+      },
+    };
+    const saved = JSON.parse(JSON.stringify(priceDealExercise(input)));
+    const again = priceDealExercise(input);
+    expect(compareExerciseResults(saved, again)).toEqual({ identical: true, differences: [] });
+    // A hand-edited coefficient is detected.
+    saved.policy.dates[0].coefficients[0] += 1e-9;
+    expect(compareExerciseResults(saved, again).differences).toContain('policy');
   });
 
   it('rights held by both parties are refused with a message naming the field', () => {
