@@ -21,8 +21,7 @@ import { fail, requirePositive } from '../errors.ts';
 import type { HestonParams } from '../simulation/types.ts';
 import type { OptionType } from './blackScholes.ts';
 import { type HestonMarket, validateHeston } from './heston.ts';
-import { Complex } from '../math/complex.ts';
-import { hestonExponentGradient, hestonExponentGrid } from './hestonCharFn.ts';
+import { hestonExponentGradientGrid, hestonExponentGrid } from './hestonCharFn.ts';
 
 /** Options of the COS pricer. */
 export interface CosOptions {
@@ -193,7 +192,7 @@ function expand(
 export const HESTON_GRADIENT_PARAMS = ['v0', 'kappa', 'theta', 'sigma', 'rho'] as const;
 
 /**
- * ∂A_k/∂p for p in (v0, κ, θ, σ, ρ): ∂φ/∂p = (∂E/∂p) φ with E = ln φ, analytic (`hestonExponentGradient`), at the
+ * ∂A_k/∂p for p in (v0, κ, θ, σ, ρ): ∂φ/∂p = (∂E/∂p) φ with E = ln φ, analytic (`hestonExponentGradientGrid`), at the
  * fixed truncation (a, b, N) of the price, so the gradient is that of the truncated series. With `onlyV0` only
  * ∂φ/∂v0 = D φ (from the inlined grid).
  */
@@ -212,7 +211,10 @@ function gradientCoefficients(
   const eIm = new Float64Array(len);
   const dRe = new Float64Array(len);
   const dIm = new Float64Array(len);
-  hestonExponentGrid(p, m.T, u, eRe, eIm, dRe, dIm);
+  const gRe = onlyV0 ? [] : HESTON_GRADIENT_PARAMS.map(() => new Float64Array(len));
+  const gIm = onlyV0 ? [] : HESTON_GRADIENT_PARAMS.map(() => new Float64Array(len));
+  if (onlyV0) hestonExponentGrid(p, m.T, u, eRe, eIm, dRe, dIm);
+  else hestonExponentGradientGrid(p, m.T, u, eRe, eIm, gRe, gIm);
   for (let j = 0; j < len; j++) {
     const mag = Math.exp(eRe[j]!);
     const ph = eIm[j]! - u[j]! * a;
@@ -223,11 +225,7 @@ function gradientCoefficients(
       outs[0]![j] = (2 / width) * (dRe[j]! * cr - dIm[j]! * ci);
       continue;
     }
-    const gr = hestonExponentGradient(p, m.T, Complex.of(u[j]!));
-    names.forEach((name, k) => {
-      const z = gr[name];
-      outs[k]![j] = (2 / width) * (z.re * cr - z.im * ci);
-    });
+    for (let k = 0; k < outs.length; k++) outs[k]![j] = (2 / width) * (gRe[k]![j]! * cr - gIm[k]![j]! * ci);
   }
   return outs;
 }

@@ -13,6 +13,7 @@ import {
   hestonCumulants,
   hestonExponent,
   hestonExponentGradient,
+  hestonExponentGradientGrid,
   type HestonMarket,
   type HestonParams,
 } from '../../../src/engine/models/index.ts';
@@ -346,6 +347,29 @@ describe('Heston Greeks and gradient', () => {
           close(`Im ∂E/∂${name} T=${T} u=${uu}`, g[name].im, fdIm, 1e-6 * (1 + Math.abs(fdIm)));
         }
       }
+  });
+
+  it('inlined gradient grid agrees with the Complex gradient', () => {
+    for (const [params, T] of [
+      [m.params, 0.75],
+      [P(0.16, 1, 0.16, 2, -0.8), 10],
+      [P(0.01, 6, 0.02, 0.3, 0.4), 0.1],
+    ] as const) {
+      const u = Float64Array.from({ length: 60 }, (_, i) => i * 0.9);
+      const eRe = new Float64Array(u.length);
+      const eIm = new Float64Array(u.length);
+      const gRe = [0, 1, 2, 3, 4].map(() => new Float64Array(u.length));
+      const gIm = [0, 1, 2, 3, 4].map(() => new Float64Array(u.length));
+      hestonExponentGradientGrid(params, T, u, eRe, eIm, gRe, gIm);
+      u.forEach((uu, j) => {
+        const g = hestonExponentGradient(params, T, Complex.of(uu));
+        close(`E re u=${uu}`, eRe[j]!, g.E.re, 1e-12 * (1 + Math.abs(g.E.re)));
+        (['v0', 'kappa', 'theta', 'sigma', 'rho'] as const).forEach((name, k) => {
+          close(`${name} re u=${uu}`, gRe[k]![j]!, g[name].re, 1e-11 * (1 + Math.abs(g[name].re)));
+          close(`${name} im u=${uu}`, gIm[k]![j]!, g[name].im, 1e-11 * (1 + Math.abs(g[name].im)));
+        });
+      });
+    }
   });
 
   it('vega with respect to v0 is close to BS vega/(2√v0) when σ is tiny and v0 = θ (limit)', () => {
