@@ -52,20 +52,38 @@ export function cosCallPrices(input: CosSliceInput): number[] {
   const phiRe = new Float64Array(N);
   const phiIm = new Float64Array(N);
   const out = new Float64Array(2);
+  // The series stops where |φ| has become negligible (< 1e-16 three times in a row), and where it would grow again
+  // (|φ| > 1, or rising after having fallen): a true characteristic function never exceeds 1, so growth means an
+  // approximate one (e.g. H1-HW with ρ(S,r) < 0, whose Gaussian factor has negative variance) has left the range
+  // where it approximates anything (common practice: truncate the Fourier integral there).
+  let used = N;
+  let prevMag = Infinity;
+  let tiny = 0;
   for (let k = 0; k < N; k++) {
     const u = k * w;
     input.logChf(u, out);
     const mag = Math.exp(out[0]!);
+    if (k > 0 && (mag > 1 + 1e-9 || (mag > prevMag * (1 + 1e-9) && mag < 0.5))) {
+      used = k;
+      break;
+    }
+    prevMag = mag;
     const ang = out[1]! - u * lo;
     phiRe[k] = mag * Math.cos(ang);
     phiIm[k] = mag * Math.sin(ang);
+    if (mag < 1e-16) {
+      if (++tiny >= 3) {
+        used = k + 1;
+        break;
+      }
+    } else tiny = 0;
   }
   const prices: number[] = [];
   for (const K of input.strikes) {
     const a = Math.log(F / K) + lo; // truncation start for ln(S_T/K)
     const ea = Math.exp(a);
     let sum = 0;
-    for (let k = 0; k < N; k++) {
+    for (let k = 0; k < used; k++) {
       const wk = k * w;
       let chi: number;
       let psi: number;

@@ -35,7 +35,8 @@ export interface HestonRefitInput {
     seed: string;
     /**
      * Tolerance on each |full model − market| implied-vol error, vol points (default 0.25); a quote meets it when its
-     * error is at most the tolerance plus two Monte Carlo standard errors.
+     * error exceeds the analytic fit's own residual by at most the tolerance plus two Monte Carlo standard errors,
+     * and only when every Monte Carlo standard error is at most the tolerance (the check can resolve it).
      */
     toleranceVolPoints?: number;
     /** Largest number of Monte Carlo checks (default 3). */
@@ -70,6 +71,11 @@ export interface HestonRefit {
   status: 'analytic' | 'met' | 'not-met';
   warnings: FieldIssue[];
   seconds: number;
+}
+
+/** True when every implied-vol standard error (decimals) is at most `tol` vol points. */
+function seWithin(volSe: number[], tol: number): boolean {
+  return volSe.every((s) => s * 100 <= tol);
 }
 
 const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
@@ -134,10 +140,13 @@ export function refitHestonUnderRates(input: HestonRefitInput): HestonRefit {
     const maxErr = Math.max(...finiteErrs.map(Math.abs));
     // A quote is met when the full model misses it by at most what the analytic fit itself left (its residual,
     // the best the model family does) plus the tolerance plus two Monte Carlo standard errors.
-    const allMet = errs.every(
-      (e, i) =>
-        Number.isFinite(e) && Math.abs(e) <= Math.abs(fitResidual[i]!) + tol + 2 * res.volSe[i]! * 100,
-    );
+    // The check must also resolve the tolerance: every Monte Carlo standard error at most the tolerance.
+    const allMet =
+      seWithin(res.volSe, tol) &&
+      errs.every(
+        (e, i) =>
+          Number.isFinite(e) && Math.abs(e) <= Math.abs(fitResidual[i]!) + tol + 2 * res.volSe[i]! * 100,
+      );
     const rec: RefitIteration = {
       iteration: it,
       params: p,
