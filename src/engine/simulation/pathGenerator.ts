@@ -343,7 +343,6 @@ export function prepareVariant(
     dom: rateStates.get(v.domestic)!,
     fgn: rateStates.get(x.foreign)!,
   }));
-  const domRate = rateStates.get(v.domestic)!;
   const slots = drivers.map((d) => layout.slotOf(d));
   const width = layout.width;
 
@@ -583,7 +582,6 @@ export function prepareVariant(
         discount[o1 + p] = Math.exp(-c);
       }
     }
-    void domRate;
 
     const bond = (ccy: string, k: number, T: number, out: Float64Array): void => {
       const rs = rateStates.get(ccy);

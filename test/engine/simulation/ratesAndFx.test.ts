@@ -3,6 +3,8 @@ import { makeHullWhite } from '../../../src/engine/models/hullWhite.ts';
 import { quantoForward, quantoEuropean } from '../../../src/engine/models/quanto.ts';
 import { makeCurve } from '../../../src/engine/market/curve.ts';
 import type { VariantSpec } from '../../../src/engine/simulation/types.ts';
+import { hwIntegrals } from '../../../src/engine/simulation/hullWhiteTerms.ts';
+import { columnStats } from '../../../src/engine/simulation/momentSums.ts';
 import { bsDyn, expectWithinSe, flatRate, FULL, run, spec } from './helpers.ts';
 
 const N = FULL ? 400_000 : 40_000;
@@ -158,5 +160,41 @@ describe('FX and quanto drift', () => {
     );
     expectWithinSe(r, 0, 1.3 * Math.exp(-0.25), 0.005, 'FX forward, HW both');
     expectWithinSe(r, 1, 130 * Math.exp(-0.2), 0.5, 'foreign equity in domestic, HW both');
+  });
+
+  it('the foreign short rate carries its quanto drift: the FX forward test is sensitive to it', async () => {
+    // E[X(T)/B_d(T)] = X0 P_f(0,T) holds only with the drift −ρ(r_f,X) σ_f σ_X in x_f (Brigo & Mercurio 2006,
+    // Sec. 2.10 change of numeraire; common practice); without it the value moves by about c·∫_0^T B(s) ds in log.
+    const a = 0.05,
+      sf = 0.02,
+      sx = 0.2,
+      rho = 0.5,
+      T = 5;
+    const v: VariantSpec = {
+      id: 'fx',
+      label: 'fx',
+      domestic: 'DOM',
+      equities: [],
+      rates: {
+        DOM: flatRate('DOM', 0.03, { a: 0.1, sigma: 0.01 }),
+        ASH: flatRate('ASH', 0.01, { a, sigma: sf }),
+      },
+      fx: [{ name: 'ASHDOM', foreign: 'ASH', spot: 2, vol: sx }],
+      correlation: {
+        names: ['rate:ASH', 'fx:ASHDOM', 'rate:DOM'],
+        matrix: [
+          [1, rho, 0.3],
+          [rho, 1, -0.1],
+          [0.3, -0.1, 1],
+        ],
+      },
+    };
+    const r = await run(
+      spec([v], [{ kind: 'fxForward', fx: 'ASHDOM', expiry: T }], { maxStep: 0.25, paths: N }),
+    );
+    const exact = 2 * Math.exp(-0.01 * T);
+    expectWithinSe(r, 0, exact, 0.01, 'FX forward with foreign quanto drift');
+    const effect = exact * rho * sf * sx * hwIntegrals(a, T).intB;
+    expect(3 * columnStats(r.sums).se(0), `effect of the drift ${effect}`).toBeLessThan(0.5 * effect);
   });
 });
