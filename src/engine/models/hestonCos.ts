@@ -231,24 +231,54 @@ function gradientCoefficients(
 }
 
 /**
+ * Strike-independent weights of a coefficient series: P_k = coef_k/ω_k, B_k = coef_k/(1 + ω_k²),
+ * W_k = coef_k ω_k/(1 + ω_k²), so that per strike χ = e^c Σ(B_k cos + W_k sin) − e^a Σ B_k and ψ = Σ P_k sin
+ * (F&O eqs. (22)–(23) regrouped), with cos/sin(kθ) from the rotation recurrence.
+ */
+interface PreparedSeries {
+  coef: Float64Array;
+  P: Float64Array;
+  B: Float64Array;
+  W: Float64Array;
+  sumB: number;
+}
+
+function prepare(coef: Float64Array, width: number): PreparedSeries {
+  const N = coef.length;
+  const P = new Float64Array(N);
+  const B = new Float64Array(N);
+  const W = new Float64Array(N);
+  let sumB = coef[0]!;
+  B[0] = coef[0]!;
+  for (let k = 1; k < N; k++) {
+    const w = (k * Math.PI) / width;
+    const inv = 1 / (1 + w * w);
+    P[k] = coef[k]! / w;
+    B[k] = coef[k]! * inv;
+    W[k] = coef[k]! * w * inv;
+    sumB += B[k]!;
+  }
+  return { coef, P, B, W, sumB };
+}
+
+/**
  * Σ_k coef_k · V_k for the put on [a, c]: returns the sums for ψ (multiplies K) and χ (multiplies F), and the cosine
  * sum Σ coef_k cos(ω_k(c − a)) (the density at c, for gamma).
  */
 function putSums(
-  coef: Float64Array,
+  series: PreparedSeries,
   a: number,
   width: number,
   c: number,
 ): { psi: number; chi: number; cosSum: number } {
+  const { coef, P, B, W } = series;
   const N = coef.length;
   const theta = (Math.PI * (c - a)) / width;
   const ct = Math.cos(theta);
   const st = Math.sin(theta);
-  const ec = Math.exp(c);
-  const ea = Math.exp(a);
-  // k = 0
+  // k = 0: ψ₀ = c − a, χ₀ = e^c − e^a
   let psi = coef[0]! * (c - a);
-  let chi = coef[0]! * (ec - ea);
+  let chiC = B[0]!;
   let cosSum = coef[0]!;
   let ck = 1;
   let sk = 0;
@@ -257,12 +287,11 @@ function putSums(
     const cn = ck * ct - sk * st;
     sk = sk * ct + ck * st;
     ck = cn;
-    const w = (k * Math.PI) / width;
-    const ck_ = coef[k]!;
-    psi += ck_ * (sk / w);
-    chi += (ck_ * (ck * ec - ea + w * sk * ec)) / (1 + w * w);
-    cosSum += ck_ * ck;
+    psi += P[k]! * sk;
+    chiC += B[k]! * ck + W[k]! * sk;
+    cosSum += coef[k]! * ck;
   }
+  const chi = Math.exp(c) * chiC - Math.exp(a) * series.sumB;
   return { psi, chi, cosSum };
 }
 
@@ -284,11 +313,12 @@ export function hestonCosSlice(input: HestonSliceInput): HestonSliceResult {
   const df = Math.exp(-input.r * input.T);
   const ex = expand(input, F, kMax, input.options ?? {}, false);
   const width = ex.b - ex.a;
+  const series = prepare(ex.A, width);
   const prices: number[] = [];
   for (let i = 0; i < input.strikes.length; i++) {
     const K = input.strikes[i]!;
     const c = Math.min(Math.max(Math.log(K / F), ex.a), ex.b);
-    const s = putSums(ex.A, ex.a, width, c);
+    const s = putSums(series, ex.a, width, c);
     const put = Math.max(0, df * (K * s.psi - F * s.chi));
     const type = typeAt(input.types, i, 'heston');
     prices.push(type === 'put' ? put : Math.max(0, put + df * (F - K)));
@@ -326,11 +356,13 @@ export function hestonCosGreeks(input: HestonSliceInput): HestonGreeks[] {
   const kMax = checkStrikes('heston', input.strikes);
   const ex = expand(input, F, kMax, input.options ?? {}, true, true);
   const width = ex.b - ex.a;
+  const series = prepare(ex.A, width);
+  const gradSeries = ex.grad ? ex.grad.map((g) => prepare(g, width)) : [];
   const out: HestonGreeks[] = [];
   for (let i = 0; i < input.strikes.length; i++) {
     const K = input.strikes[i]!;
     const c = Math.min(Math.max(Math.log(K / F), ex.a), ex.b);
-    const s = putSums(ex.A, ex.a, width, c);
+    const s = putSums(series, ex.a, width, c);
     const type = typeAt(input.types, i, 'heston');
     const putDeltaF = -df * s.chi;
     const deltaPut = putDeltaF * growth;
@@ -339,7 +371,7 @@ export function hestonCosGreeks(input: HestonSliceInput): HestonGreeks[] {
     const delta = type === 'put' ? deltaPut : deltaPut + Math.exp(-input.q * input.T);
     const put = df * (K * s.psi - F * s.chi);
     const price = type === 'put' ? put : put + df * (F - K);
-    const v = putSums(ex.grad![0]!, ex.a, width, c);
+    const v = putSums(gradSeries[0]!, ex.a, width, c);
     out.push({ price, delta, gamma, vegaV0: df * (K * v.psi - F * v.chi) });
   }
   return out;
@@ -361,16 +393,18 @@ export function hestonCosSliceWithGradient(input: HestonSliceInput): HestonSlice
   const df = Math.exp(-input.r * input.T);
   const ex = expand(input, F, kMax, input.options ?? {}, true);
   const width = ex.b - ex.a;
+  const series = prepare(ex.A, width);
+  const gradSeries = ex.grad ? ex.grad.map((g) => prepare(g, width)) : [];
   const prices: number[] = [];
   const gradient: HestonSliceGradient['gradient'] = [];
   for (let i = 0; i < input.strikes.length; i++) {
     const K = input.strikes[i]!;
     const c = Math.min(Math.max(Math.log(K / F), ex.a), ex.b);
-    const s = putSums(ex.A, ex.a, width, c);
+    const s = putSums(series, ex.a, width, c);
     const put = df * (K * s.psi - F * s.chi);
     const type = typeAt(input.types, i, 'heston');
     prices.push(type === 'put' ? put : put + df * (F - K));
-    const gr = ex.grad!.map((coef) => {
+    const gr = gradSeries.map((coef) => {
       const t = putSums(coef, ex.a, width, c);
       return df * (K * t.psi - F * t.chi);
     });
