@@ -145,6 +145,37 @@ describe('FX and quanto drift', () => {
     expect(quantoEuropean({ ...p, type: 'call', K: 105, fixedFx: 1.5 })).toBeCloseTo(5.328, 3);
   });
 
+  it('the quanto drift of a foreign equity is resolved well beyond the Monte Carlo error', async () => {
+    // Quanto forward S0 exp((r_f − q − ρ σ_S σ_X) T) by the models layer's closed form (second method); the drift
+    // term moves the value by ρ σ_S σ_X T = 18% here, far above 3 SE.
+    const v = quantoVariant(false);
+    v.equities[0]!.dynamics = bsDyn(0.3);
+    v.fx[0]!.vol = 0.2;
+    v.correlation = {
+      names: ['eq:B', 'fx:ASHDOM'],
+      matrix: [
+        [1, 0.6],
+        [0.6, 1],
+      ],
+    };
+    const r = await run(
+      spec([v], [{ kind: 'quantoForward', equity: 'B', expiry: 5 }], { maxStep: 1, paths: N }),
+    );
+    const exact =
+      quantoForward({
+        S: 100,
+        T: 5,
+        rDomestic: 0.08,
+        rForeign: 0.05,
+        q: 0.04,
+        volS: 0.3,
+        volFx: 0.2,
+        rho: 0.6,
+      }) * Math.exp(-0.4);
+    expectWithinSe(r, 0, exact, 0.5, 'quanto forward, strong drift');
+    expect(3 * columnStats(r.sums).se(0)).toBeLessThan(0.1 * exact * 0.18);
+  });
+
   it('with Hull–White rates in both currencies the FX forward and the converted foreign equity stay martingales', async () => {
     // Under the domestic bank account: E[X(T)/B_d(T)] = X0 P_f(0,T) and E[S(T) X(T)/B_d(T)] = S0 X0 e^{−qT}
     // (common practice; they check the FX drift r_d − r_f and the quanto drifts of the foreign equity and rate).
