@@ -4,6 +4,8 @@ import { compileDeal } from '../../../src/engine/deal/compileDeal.ts';
 import { evaluateDetailed } from '../../../src/engine/deal/dealEvaluator.ts';
 import type { DealInput } from '../../../src/engine/deal/types.ts';
 import { dealExerciseSource } from '../../../src/engine/exercise/sources/dealExerciseSource.ts';
+import { hullWhiteTreeSwaption } from '../../../src/engine/models/hullWhiteTree.ts';
+import { flatCurve } from '../../../src/engine/market/curve.ts';
 import {
   compareExerciseResults,
   exerciseSeeds,
@@ -195,6 +197,72 @@ describe('early exercise of deals written in the deal language', () => {
     // A hand-edited coefficient is detected.
     saved.policy.dates[0].coefficients[0] += 1e-9;
     expect(compareExerciseResults(saved, again).differences).toContain('policy');
+  });
+
+  it('a Bermudan swaption written in the deal language is bracketed by its bounds around the Hull–White tree', () => {
+    // Independent reference: the Hull & White (1994) tree of this project on the 1y×4y case of
+    // /work/shared/reference/published.md, Sec. 3 (a = 0.05, σ = 0.01, flat 4 %, fixed 4.2 %, notional 100),
+    // here with exercise at 1, 2, 3 and 4 years. One right per date, each paying that date's payer swap value.
+    const pay = [2, 3, 4, 5];
+    const swapAt = (t: number) => {
+      const rest = pay.filter((p) => p > t);
+      const fixed = rest.map((p) => `bond(DOM, ${p})`).join(' + ');
+      return `max(1 - bond(DOM, ${rest[rest.length - 1]}) - K * (${fixed}), 0)`;
+    };
+    const swaption: DealInput = {
+      format: 'factor-triage/deal@1',
+      name: 'Bermudan payer swaption in the deal language',
+      notional: 100,
+      currency: 'DOM',
+      underlyings: { ALDR: { kind: 'equity', currency: 'DOM' } },
+      rates: ['DOM'],
+      parameters: { K: 0.042 },
+      schedules: {
+        e1: { dates: [1] },
+        e2: { dates: [2] },
+        e3: { dates: [3] },
+        e4: { dates: [4] },
+        end: { dates: [5] },
+      },
+      events: [{ label: 'nothing', on: 'end', pay: { amount: '0' } }],
+      exercise: [1, 2, 3, 4].map((t) => ({
+        label: `enter at ${t}y`,
+        on: `e${t}`,
+        by: 'holder' as const,
+        amount: swapAt(t),
+      })),
+    };
+    const tree = hullWhiteTreeSwaption(
+      flatCurve('DOM', 0.04),
+      { a: 0.05, sigma: 0.01 },
+      {
+        type: 'payer',
+        exerciseTimes: [1, 2, 3, 4],
+        startTime: 1,
+        payTimes: pay,
+        strike: 0.042,
+        notional: 100,
+      },
+      0.02,
+    ).value;
+    const src = dealExerciseSource({
+      compiled: compileDeal(swaption),
+      variant: hwVariant(0.05, 0.01, 0.04),
+      maxStep: 0.25,
+    });
+    const r = priceExerciseRight(src, {
+      seed: 'deal-swaption',
+      regressionPaths: full ? 50_000 : 10_000,
+      pricingPaths: full ? 200_000 : 30_000,
+      dual: { outerPaths: full ? 500 : 60, innerPaths: full ? 300 : 60 },
+    });
+    const { value, se } = r.estimate.primal;
+    const d = r.estimate.dual!;
+    const info = `tree ${tree}; LSM ${value} ± ${se}; dual ${d.value} ± ${d.se}`;
+    expect(se, info).toBeLessThan(0.02);
+    expect(value, info).toBeLessThan(tree + 3 * se);
+    expect(d.value, info).toBeGreaterThan(tree - 3 * d.se);
+    expect(Math.abs(value - tree), info).toBeLessThan(0.01 * tree + 3 * se);
   });
 
   it('rights held by both parties are refused with a message naming the field', () => {
