@@ -361,9 +361,14 @@ export function checkDeal(raw: unknown): DealCheck {
     }
   }
   const schedules: Record<string, number[]> = {};
+  const starts: Record<string, number> = {};
   for (const [k, s] of Object.entries(deal.schedules)) {
     const times = guard(() => expandSchedule(`deal.schedules.${k}`, s, valuationDay));
     if (times) schedules[k] = times;
+    starts[k] =
+      'start' in s
+        ? (guard(() => toYearFraction(`deal.schedules.${k}.start`, s.start, valuationDay)) ?? 0)
+        : 0;
   }
   if (issues.some((i) => i.severity === 'error')) return { issues, expressionErrors: [] };
 
@@ -462,10 +467,12 @@ export function checkDeal(raw: unknown): DealCheck {
       issues.push(
         issue('E_EMPTY_EVENT', f, 'must pay, set state or terminate', ev, 'add "pay", "set" or "terminate"'),
       );
+    if (starts[ev.on]! > 0) L.gridTimes.add(starts[ev.on]!);
     events.push({
       label: ev.label ?? `event ${i + 1}`,
       schedule: ev.on,
       times,
+      startTime: starts[ev.on]!,
       when,
       pay,
       set,
@@ -480,7 +487,14 @@ export function checkDeal(raw: unknown): DealCheck {
     for (const t of times) L.gridTimes.add(t);
     const amount = payment(x, f, times);
     if (amount)
-      exercise.push({ label: x.label ?? `exercise ${i + 1}`, schedule: x.on, times, by: x.by, amount });
+      exercise.push({
+        label: x.label ?? `exercise ${i + 1}`,
+        schedule: x.on,
+        times,
+        startTime: starts[x.on]!,
+        by: x.by,
+        amount,
+      });
   });
 
   if (issues.some((i) => i.severity === 'error')) return { issues, expressionErrors: exprErrors };

@@ -494,10 +494,11 @@ export function makeDealRunner(compiled: CompiledDeal, opts: DealEvaluatorOption
       }
       while (oi < occ.length && occ[oi]!.step === k) {
         const o = occ[oi++]!;
-        const sched = o.kind === 0 ? compiled.events[o.idx]!.times : compiled.exercise[o.idx]!.times;
+        const owner = o.kind === 0 ? compiled.events[o.idx]! : compiled.exercise[o.idx]!;
+        const sched = owner.times;
         env.k = k;
         env.t = o.time;
-        env.dt = o.time - (o.dateIdx === 0 ? 0 : sched[o.dateIdx - 1]!);
+        env.dt = o.time - (o.dateIdx === 0 ? (owner.startTime ?? 0) : sched[o.dateIdx - 1]!);
         env.index = o.dateIdx + 1;
         env.count = sched.length;
         if (o.kind === 0) {

@@ -167,6 +167,8 @@ export interface CompiledEvent {
   label: string;
   schedule: string;
   times: number[];
+  /** Start of the first accrual period (years): the schedule's start date when rolled, else 0. */
+  startTime?: number;
   when: Program | null;
   pay: CompiledPayment[];
   set: { name: string; value: Program }[];
@@ -177,6 +179,8 @@ export interface CompiledExercise {
   label: string;
   schedule: string;
   times: number[];
+  /** Start of the first accrual period (years): the schedule's start date when rolled, else 0. */
+  startTime?: number;
   by: 'issuer' | 'holder';
   amount: CompiledPayment;
 }

@@ -257,3 +257,18 @@ describe('weekday schedules', () => {
     expect(c.schedules.obs!.map((t) => Math.round(t * 365))).toEqual([1, 2, 3, 4, 7, 8, 9, 10, 11, 14]);
   });
 });
+
+describe('accrual of a forward-starting schedule', () => {
+  it('dt of the first date runs from the schedule start, not from the valuation date (common practice)', () => {
+    const c = compileDeal({
+      ...memoryDeal,
+      state: {},
+      schedules: { fwd: { start: 1, end: 3, every: '1Y' } },
+      events: [{ on: 'fwd', pay: { amount: 'dt' } }],
+    });
+    expect(c.events[0]!.startTime).toBe(1);
+    expect(c.gridTimes).toEqual([1, 2, 3]);
+    const det = evaluateDetailed(c, handBatch([[100, 100, 100, 100]]));
+    expect(det.flows.map((f) => f.values[0]! / (100 * Math.exp(-0.05 * f.time)))).toEqual([1, 1]);
+  });
+});
