@@ -54,11 +54,11 @@ export function calibrateLocalVol(input: {
   equity: EquityQuote;
   curve: DiscountCurve;
   /**
-   * Sampling times (default per interval between expiries: just after its start, at 1/3, 2/3 and its end, so the
-   * bilinear grid follows the jumps of ∂_T w at the quoted expiries).
+   * Sampling times (default per interval between expiries: just after its start, then 7 equal steps to its end, so the
+   * bilinear grid follows the jumps of ∂_T w at the quoted expiries and the fast change of σ_loc at short times).
    */
   times?: number[];
-  /** Log-moneyness nodes (default −1.2 … 0.8 in steps of 0.05). */
+  /** Log-moneyness nodes (default −1.2 … 0.8 in steps of 0.025). */
   logK?: number[];
 }): LocalVolCalibration {
   const t0 = now();
@@ -69,9 +69,9 @@ export function calibrateLocalVol(input: {
     input.times ??
     E.flatMap((T, i) => {
       const lo = i === 0 ? 0 : E[i - 1]!;
-      return [0.01, 1 / 3, 2 / 3, 1].map((f) => lo + f * (T - lo));
+      return Array.from({ length: 8 }, (_, j) => lo + (j === 0 ? 0.01 : j / 7) * (T - lo));
     });
-  const logK = input.logK ?? Array.from({ length: 41 }, (_, j) => -1.2 + 0.05 * j);
+  const logK = input.logK ?? Array.from({ length: 81 }, (_, j) => -1.2 + 0.025 * j);
   let floored = 0;
   const values = times.map((t) =>
     logK.map((k) => {
