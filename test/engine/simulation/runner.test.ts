@@ -40,6 +40,24 @@ describe('the runner gives the same numbers for any number of workers', () => {
     }
   });
 
+  it('a worker pool stops dispatching on cancellation and returns a partial result in batch order', async () => {
+    const s = spec([heston], payoffs, { maxStep: 0.05, paths: 2_000_000, batchSize: 2000 });
+    const ac = new AbortController();
+    const w = makeNodeWorkerExecutor(2);
+    try {
+      const r = await runSimulation(s, w, {
+        signal: ac.signal,
+        onProgress: (p) => p.batchesDone === 2 && ac.abort(),
+      });
+      expect(r.partial).toBe(true);
+      expect(r.batches).toBe(2);
+      const ref = await runSimulation({ ...s, maxPaths: 4000 }, inProcessExecutor());
+      expect(Array.from(r.sums.mean)).toEqual(Array.from(ref.sums.mean));
+    } finally {
+      await w.close();
+    }
+  });
+
   it('a worker reports a bad input as an EngineError naming the field', async () => {
     const bad = spec([{ ...bs, equities: [{ ...bs.equities[0]!, spot: -1 }] }], payoffs, {
       maxStep: 0.25,
