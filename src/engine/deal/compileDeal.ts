@@ -182,6 +182,13 @@ function lower(L: Lowering, tree: CheckedExpr, field: string, text: string, time
         return call(e);
     }
   };
+  /** The initial fixing when the deal gives one, else the path's level at the valuation date. */
+  const startLevel = (id: string): number => {
+    const fixed = L.deal.underlyings[id]!.initialLevel;
+    return fixed !== undefined
+      ? push({ op: 'num', value: fixed })
+      : push({ op: 'level', source: sourceOf(L.deal, id), at: 'start' });
+  };
   const call = (e: Extract<CheckedExpr, { k: 'call' }>): number => {
     const c = (i: number): number => foldConstant(e.args[i]!, L.params);
     switch (e.fn) {
@@ -194,10 +201,10 @@ function lower(L: Lowering, tree: CheckedExpr, field: string, text: string, time
         return push({ op: 'nary', fn: 'min', args: [m, hi] });
       }
       case 'start':
-        return push({ op: 'level', source: sourceOf(L.deal, e.names[0]!), at: 'start' });
+        return startLevel(e.names[0]!);
       case 'perf': {
         const now = push({ op: 'level', source: sourceOf(L.deal, e.names[0]!), at: 'now' });
-        const s0 = push({ op: 'level', source: sourceOf(L.deal, e.names[0]!), at: 'start' });
+        const s0 = startLevel(e.names[0]!);
         return push({ op: 'binary', fn: 'div', a: now, b: s0 });
       }
       case 'lowest':

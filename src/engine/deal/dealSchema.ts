@@ -24,8 +24,22 @@ const payment = z
   .strict();
 
 const underlying = z.discriminatedUnion('kind', [
-  z.object({ kind: z.literal('equity'), currency, marketName: z.string().min(1).optional() }).strict(),
-  z.object({ kind: z.literal('fx'), units: currency, per: currency }).strict(),
+  z
+    .object({
+      kind: z.literal('equity'),
+      currency,
+      marketName: z.string().min(1).optional(),
+      initialLevel: z.number().positive().optional(),
+    })
+    .strict(),
+  z
+    .object({
+      kind: z.literal('fx'),
+      units: currency,
+      per: currency,
+      initialLevel: z.number().positive().optional(),
+    })
+    .strict(),
 ]);
 
 const schedule = z.union([

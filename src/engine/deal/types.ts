@@ -22,6 +22,11 @@ export interface EquityUnderlying {
   currency: string;
   /** Name in the market snapshot and in the simulated paths when it differs from the deal's own id. */
   marketName?: string;
+  /**
+   * The initial fixing (level in `currency`) that `start()` and `perf()` read. Absent: the level on the path at the
+   * valuation date. Give it for a deal already struck, so that a spot bump moves performances (hedge ratios).
+   */
+  initialLevel?: number;
 }
 
 /** An FX rate quoted as `units` currency per one unit of `per` (e.g. units DOM per ASH: `ASH/DOM`). */
@@ -29,6 +34,8 @@ export interface FxUnderlying {
   kind: 'fx';
   units: string;
   per: string;
+  /** Initial fixing (units per one `per`) read by `start()` and `perf()`; absent: the path's level at 0. */
+  initialLevel?: number;
 }
 
 export type Underlying = EquityUnderlying | FxUnderlying;

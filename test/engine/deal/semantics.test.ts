@@ -272,3 +272,16 @@ describe('accrual of a forward-starting schedule', () => {
     expect(det.flows.map((f) => f.values[0]! / (100 * Math.exp(-0.05 * f.time)))).toEqual([1, 1]);
   });
 });
+
+describe('initial fixings', () => {
+  it('with initialLevel, start() is the fixing and perf() moves with the path level (common practice for struck deals)', () => {
+    const d: DealInput = {
+      ...memoryDeal,
+      state: {},
+      underlyings: { ALDR: { kind: 'equity', currency: 'DOM', initialLevel: 50 } },
+      events: [{ on: 'final', pay: { amount: 'perf(ALDR) + start(ALDR)' } }],
+    };
+    const v = makeDealEvaluator(compileDeal(d))(handBatch([[100, 100, 100, 200]]));
+    expect(v[0]).toBeCloseTo(100 * (200 / 50 + 50) * Math.exp(-0.15), 10);
+  });
+});

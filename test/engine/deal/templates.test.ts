@@ -23,7 +23,7 @@ const variant: VariantSpec = {
   equities: ['ALDR', 'BRIX', 'KESO'].map((name) => ({
     name,
     currency: name === 'KESO' ? 'ASH' : 'DOM',
-    spot: 100,
+    spot: name === 'ALDR' ? 4200 : name === 'BRIX' ? 980 : 2350,
     divYield: 0.02,
     dynamics: { kind: 'heston' as const, v0: 0.04, kappa: 1.5, theta: 0.04, sigma: 0.4, rho: -0.6 },
   })),
