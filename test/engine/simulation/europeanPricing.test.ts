@@ -28,6 +28,20 @@ describe('European calls by Monte Carlo agree with closed forms within 3 standar
     );
   });
 
+  it('at zero vol a call is worth its discounted intrinsic value on the forward, path by path', async () => {
+    // Limit σ = 0 (common practice): S(T) = S0 e^{(r − q)T} on every path.
+    const r = await run(
+      spec(
+        [oneEquity({ spot: 100, r: 0.05, q: 0.01, dynamics: bsDyn(0) })],
+        [{ kind: 'call', equity: 'A', strike: 90, expiry: 2 }],
+        { maxStep: 0.5, paths: 1000 },
+      ),
+    );
+    const exact = Math.exp(-0.1) * (100 * Math.exp(0.08) - 90);
+    expect(r.sums.mean[0]!).toBeCloseTo(exact, 10);
+    expect(r.sums.comoment[0]!).toBeLessThan(1e-18);
+  });
+
   it('Black–Scholes with a vol term structure prices like the flat vol of the same total variance', async () => {
     // Limit: exact log steps depend only on ∫σ² (common practice); vols 0.1 on (0,1], 0.3 after, T = 2.
     const dyn = { kind: 'bs' as const, volTimes: [1, 2], vols: [0.1, 0.3] };
