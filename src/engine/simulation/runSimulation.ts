@@ -4,7 +4,7 @@
  * cancellation) are checked after each merged batch, so the result is the same for any number of workers.
  */
 import type { FieldIssue } from '../errors.ts';
-import { EngineError } from '../errors.ts';
+import { EngineError, fail } from '../errors.ts';
 import { batchCount, validateRunSpec, type ColumnLabel, type RunSpec } from './runSpec.ts';
 import { columnStats, controlVariate, emptySums, mergeSums, type MomentSums } from './momentSums.ts';
 import { makeBatchContext, simulateBatch, type BatchContext, type BatchResult } from './batch.ts';
@@ -52,6 +52,24 @@ export interface RunResult {
   /** Control-variate estimates, one per (control, variant), base scenario. */
   controlled: { variant: string; target: number; control: number; mean: number; se: number; beta: number }[];
   elapsedMs: number;
+}
+
+/** Column references of the stopping rule and the controls must exist (checked once the column count is known). */
+function checkColumns(spec: RunSpec, columns: number, outputs: number): void {
+  (spec.targetSe?.columns ?? []).forEach((c, i) => {
+    if (!(Number.isInteger(c) && c >= 0 && c < columns))
+      fail('E_BAD_COLUMN', `targetSe.columns[${i}]`, `must be a column index 0..${columns - 1}`, c);
+  });
+  (spec.controls ?? []).forEach((c, i) => {
+    for (const key of ['target', 'control'] as const)
+      if (!(Number.isInteger(c[key]) && c[key] >= 0 && c[key] < outputs))
+        fail(
+          'E_BAD_OUTPUT',
+          `controls[${i}].${key}`,
+          `must be a payoff output index 0..${outputs - 1}`,
+          c[key],
+        );
+  });
 }
 
 /** Runs a spec with an executor, merging in batch order. */
@@ -119,6 +137,7 @@ export async function runSimulation(
           sums = emptySums(r.sums.mean.length);
           outputs = r.outputs;
           warnings = r.warnings;
+          checkColumns(spec, r.sums.mean.length, outputs);
         }
         sums = mergeSums(sums, r.sums);
         pathsDone += r.paths;

@@ -112,6 +112,16 @@ describe('stopping rules', () => {
     await expect(runSimulation(s, inProcessExecutor())).rejects.toThrow(/maxPaths/);
   });
 
+  it('rejects a stopping rule or a control that names a column that does not exist', async () => {
+    const base = spec([bs], payoffs.slice(0, 1), { maxStep: 2, paths: 4000, batchSize: 2000 });
+    await expect(
+      runSimulation({ ...base, targetSe: { se: 0.1, columns: [3] } }, inProcessExecutor()),
+    ).rejects.toThrow(/targetSe\.columns\[0\] must be a column index 0\.\.0/);
+    await expect(
+      runSimulation({ ...base, controls: [{ target: 0, control: 2, known: {} }] }, inProcessExecutor()),
+    ).rejects.toThrow(/controls\[0\]\.control/);
+  });
+
   it('reports a control-variate estimate with a smaller standard error', async () => {
     // Control variate with known mean (Glasserman 2003, Sec. 4.1): the discounted asset S(T)/B(T) = S0 e^{−qT}.
     const s = {
