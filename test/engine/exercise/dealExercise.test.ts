@@ -265,6 +265,63 @@ describe('early exercise of deals written in the deal language', () => {
     expect(Math.abs(value - tree), info).toBeLessThan(0.01 * tree + 3 * se);
   });
 
+  it('an issuer-callable fixed-coupon bond is the straight bond minus the Bermudan receiver swaption of the tree', () => {
+    // common practice: calling at par on a coupon date cancels the remaining coupons and redemption against par,
+    // which is the issuer exercising a receiver swaption (fixed rate = coupon) on the rest of the bond. Independent reference: the Hull & White (1994) tree of this
+    // project, 1y×4y case of /work/shared/reference/published.md, Sec. 3 parameters, receiver side.
+    const K = 0.042;
+    const bond: DealInput = {
+      format: 'factor-triage/deal@1',
+      name: 'issuer-callable 5y bond',
+      notional: 100,
+      currency: 'DOM',
+      underlyings: { ALDR: { kind: 'equity', currency: 'DOM' } },
+      rates: ['DOM'],
+      parameters: { K },
+      schedules: { coupons: { dates: [1, 2, 3, 4, 5] }, calls: { dates: [1, 2, 3, 4] }, end: { dates: [5] } },
+      events: [
+        { label: 'coupon', on: 'coupons', pay: { amount: 'K' } },
+        { label: 'redemption', on: 'end', pay: { amount: '1' } },
+      ],
+      exercise: [{ label: 'issuer call at par', on: 'calls', by: 'issuer', amount: '1' }],
+    };
+    const curve = flatCurve('DOM', 0.04);
+    const straight = 100 * ([1, 2, 3, 4, 5].reduce((s, t) => s + K * curve.df(t), 0) + curve.df(5));
+    const receiver = hullWhiteTreeSwaption(
+      curve,
+      { a: 0.05, sigma: 0.01 },
+      {
+        type: 'receiver',
+        exerciseTimes: [1, 2, 3, 4],
+        startTime: 1,
+        payTimes: [2, 3, 4, 5],
+        strike: K,
+        notional: 100,
+      },
+      0.02,
+    ).value;
+    const exact = straight - receiver;
+    const src = dealExerciseSource({
+      compiled: compileDeal(bond),
+      variant: hwVariant(0.05, 0.01, 0.04),
+      maxStep: 0.25,
+    });
+    const r = priceExerciseRight(src, {
+      seed: 'callable-bond',
+      regressionPaths: full ? 50_000 : 10_000,
+      pricingPaths: full ? 200_000 : 30_000,
+      dual: { outerPaths: full ? 500 : 60, innerPaths: full ? 300 : 60 },
+    });
+    const { value, se } = r.estimate.primal;
+    const d = r.estimate.dual!;
+    const info = `straight ${straight} − tree receiver ${receiver} = ${exact}; LSM ${value} ± ${se}; dual ${d.value} ± ${d.se}`;
+    expect(se, info).toBeLessThan(0.1);
+    // Issuer right: the policy estimate is biased high, the dual estimate low.
+    expect(value, info).toBeGreaterThan(exact - 3 * se);
+    expect(d.value, info).toBeLessThan(exact + 3 * d.se);
+    expect(Math.abs(value - exact), info).toBeLessThan(0.01 * receiver + 3 * se);
+  });
+
   it('rights held by both parties are refused with a message naming the field', () => {
     const both: DealInput = {
       ...callableZero(68),
