@@ -72,6 +72,25 @@ export interface H1HwRates {
   hw: HullWhiteParams;
   /** Correlation between the equity and the domestic short rate. */
   rhoSR: number;
+  /** E[√v(t)] as a function (e.g. {@link sqrtVarianceTable}); default the exact series at each node. */
+  sqrtV?: (t: number) => number;
+}
+
+/**
+ * E[√v(t)] on [0, tMax] tabulated at 65 nodes uniform in √t and interpolated linearly (the function is smooth; the
+ * √t spacing follows its fast change near 0). Lets every expiry of a calibration share one set of series sums.
+ */
+export function sqrtVarianceTable(p: HestonParams, tMax: number): (t: number) => number {
+  const n = 64;
+  const s = Array.from({ length: n + 1 }, (_, i) => (i / n) * Math.sqrt(tMax));
+  const vals = s.map((x) => expectedSqrtVariance(p, x * x));
+  return (t: number) => {
+    const x = Math.sqrt(Math.max(t, 0));
+    const h = Math.sqrt(tMax) / n;
+    const i = Math.min(Math.floor(x / h), n - 1);
+    const w = (x - s[i]!) / h;
+    return (1 - w) * vals[i]! + w * vals[i + 1]!;
+  };
 }
 
 /** Σ²(T) = ∫_0^T [b(t)² + 2ρ_Sr b(t) E√v(t)] dt, b(t) = σ_r(t)(1 − e^{−a(T−t)})/a. */
@@ -79,7 +98,9 @@ export function h1hwExtraVariance(p: HestonParams, T: number, rates: H1HwRates):
   const { hw, rhoSR } = rates;
   return integratePieces(hw, 0, T, (t) => {
     const b = hwSigmaAt(hw, t) * hwB(hw.a, t, T);
-    return b * b + 2 * rhoSR * b * (rhoSR === 0 ? 0 : expectedSqrtVariance(p, t));
+    return (
+      b * b + 2 * rhoSR * b * (rhoSR === 0 ? 0 : rates.sqrtV ? rates.sqrtV(t) : expectedSqrtVariance(p, t))
+    );
   });
 }
 

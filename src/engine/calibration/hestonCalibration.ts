@@ -8,9 +8,9 @@
 import type { DiscountCurve, EquityQuote } from '../market/types.ts';
 import type { HestonParams } from '../simulation/types.ts';
 import { EngineError, issue, throwIfErrors, type FieldIssue } from '../errors.ts';
-import { cosCallPrices, type LogCharFn } from './cosPricer.ts';
+import { prepareCosSlice, type LogCharFn, type PreparedCosSlice } from './cosPricer.ts';
 import { hestonLogChf } from './hestonCharFn.ts';
-import { h1hwLogChf, type H1HwRates } from './h1hwCharFn.ts';
+import { h1hwLogChf, sqrtVarianceTable, type H1HwRates } from './h1hwCharFn.ts';
 import { blackImpliedVol } from './blackFormulas.ts';
 import { fitLeastSquares, type FitParameter, type FitReport } from './levenbergMarquardt.ts';
 import { gridArbitrageIssues, gridQuotes, type VolQuote } from './volGrid.ts';
@@ -98,6 +98,48 @@ function slices(quotes: VolQuote[]): { expiry: number; idx: number[] }[] {
   return [...map.entries()].sort((a, b) => a[0] - b[0]).map(([expiry, idx]) => ({ expiry, idx }));
 }
 
+const prepared = new WeakMap<
+  readonly VolQuote[],
+  Map<string, { expiry: number; idx: number[]; slice: PreparedCosSlice }[]>
+>();
+
+/** Slices of the quotes with their COS coefficients, prepared once per quote set and number of terms. */
+function preparedSlices(quotes: VolQuote[], terms: number) {
+  let byTerms = prepared.get(quotes);
+  if (!byTerms) {
+    byTerms = new Map();
+    prepared.set(quotes, byTerms);
+  }
+  const key = String(terms);
+  let list = byTerms.get(key);
+  if (!list) {
+    list = slices(quotes).map((s) => {
+      const qs = s.idx.map((i) => quotes[i]!);
+      const q0 = qs[0]!;
+      const T = s.expiry;
+      const vMax = Math.max(...qs.map((q) => q.vol));
+      const vMean = qs.reduce((acc, q) => acc + q.vol, 0) / qs.length;
+      // Range from the market vols: centre −½σ̄²T, half-width 16·σ_max√T (at least 0.8 in log-price).
+      const half = Math.max(16 * vMax * Math.sqrt(T), 0.8);
+      const lo = -0.5 * vMean * vMean * T - half;
+      return {
+        expiry: T,
+        idx: s.idx,
+        slice: prepareCosSlice({
+          forward: q0.forward,
+          df: q0.df,
+          strikes: qs.map((q) => q.strike),
+          lo,
+          width: 2 * half,
+          terms,
+        }),
+      };
+    });
+    byTerms.set(key, list);
+  }
+  return list;
+}
+
 /** Model prices (discounted, out-of-the-money side) of the quotes. */
 export function hestonModelPrices(
   p: HestonParams,
@@ -105,18 +147,12 @@ export function hestonModelPrices(
   options: { rates?: H1HwRates; terms?: number } = {},
 ): number[] {
   const out = new Array<number>(quotes.length).fill(NaN);
-  for (const s of slices(quotes)) {
-    const q0 = quotes[s.idx[0]!]!;
+  const sqrtV = options.rates ? sqrtVarianceTable(p, Math.max(...quotes.map((q) => q.expiry))) : undefined;
+  for (const s of preparedSlices(quotes, options.terms ?? 192)) {
     const logChf: LogCharFn = options.rates
-      ? h1hwLogChf(p, s.expiry, options.rates)
+      ? h1hwLogChf(p, s.expiry, { ...options.rates, sqrtV })
       : hestonLogChf(p, s.expiry);
-    const calls = cosCallPrices({
-      logChf,
-      forward: q0.forward,
-      df: q0.df,
-      strikes: s.idx.map((i) => quotes[i]!.strike),
-      terms: options.terms ?? 192,
-    });
+    const calls = s.slice.callPrices(logChf);
     s.idx.forEach((i, k) => {
       const q = quotes[i]!;
       out[i] = q.isCall ? calls[k]! : calls[k]! - q.df * (q.forward - q.strike);
