@@ -7,6 +7,7 @@ import { defineConfig, type Plugin } from 'vite';
 import react from '@vitejs/plugin-react';
 import { fileURLToPath } from 'node:url';
 import path from 'node:path';
+import fs from 'node:fs';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 
@@ -30,7 +31,74 @@ function cspMeta(): Plugin {
     name: 'factor-triage-csp',
     apply: 'build',
     transformIndexHtml: (html) =>
-      html.replace('<head>', `<head>\n    <meta http-equiv="Content-Security-Policy" content="${CSP}" />`),
+      html.replace(
+        '<meta charset="utf-8" />',
+        `<meta charset="utf-8" />\n    <meta http-equiv="Content-Security-Policy" content="${CSP}" />`,
+      ),
+  };
+}
+
+/**
+ * The engine names modules it loads at run time (payoff factories of the simulation runner) by
+ * `new URL('./module.ts', import.meta.url)` and loads them with a dynamic `import(specifier)`. A browser cannot
+ * import TypeScript sources, so in a build each such reference becomes a stable name (`ft-module:<path>`) and
+ * the runner's loader first looks the name up in a table of ordinary code-split imports of those modules.
+ * The build fails if the loader it expects is not found, rather than producing an engine that cannot run.
+ */
+function engineModuleUrls(): Plugin {
+  const engineDir = path.join(here, 'src', 'engine');
+  const urlPattern = /new URL\(\s*'(\.\/[\w.-]+\.ts)'\s*,\s*import\.meta\.url\s*\)/g;
+  const loaderPattern = /import\(\s*\/\*\s*@vite-ignore\s*\*\/\s*specifier\s*\)/;
+  const modules = new Map<string, string>();
+  let sawLoader = false;
+  const scan = (dir: string): void => {
+    for (const f of fs.readdirSync(dir, { withFileTypes: true })) {
+      const p = path.join(dir, f.name);
+      if (f.isDirectory()) scan(p);
+      else if (f.name.endsWith('.ts'))
+        for (const m of fs.readFileSync(p, 'utf8').matchAll(urlPattern)) {
+          const target = path.resolve(path.dirname(p), m[1]!);
+          // Node-only adapters (*.node.ts) are never loaded in a browser.
+          if (!target.endsWith('.node.ts'))
+            modules.set(`ft-module:${path.relative(engineDir, target).split(path.sep).join('/')}`, target);
+        }
+    }
+  };
+  return {
+    name: 'factor-triage-engine-module-urls',
+    apply: 'build',
+    enforce: 'pre',
+    buildStart() {
+      modules.clear();
+      sawLoader = false;
+      scan(engineDir);
+    },
+    transform(code, id) {
+      if (!id.startsWith(engineDir + path.sep)) return null;
+      let out = code;
+      if (out.includes('import.meta.url'))
+        out = out.replace(urlPattern, (_all, rel: string) => {
+          const target = path.resolve(path.dirname(id), rel);
+          return `new URL(${JSON.stringify(`ft-module:${path.relative(engineDir, target).split(path.sep).join('/')}`)})`;
+        });
+      if (loaderPattern.test(out)) {
+        sawLoader = true;
+        const table = [...modules]
+          .map(([k, v]) => `${JSON.stringify(k)}: () => import(${JSON.stringify(v)})`)
+          .join(',\n  ');
+        out =
+          out.replace(loaderPattern, '__ftLoadModule(specifier)') +
+          `\nconst __ftModules = {\n  ${table}\n};\n` +
+          'function __ftLoadModule(s) { const f = __ftModules[s]; return f ? f() : import(/* @vite-ignore */ s); }\n';
+      }
+      return out === code ? null : { code: out, map: null };
+    },
+    buildEnd() {
+      if (modules.size > 0 && !sawLoader)
+        this.error(
+          'the engine loads modules by URL but the runner loader `import(/* @vite-ignore */ specifier)` was not found',
+        );
+    },
   };
 }
 
@@ -51,7 +119,7 @@ export default defineConfig(({ mode }) => {
           ]
         : [],
     },
-    worker: { format: 'es' },
+    worker: { format: 'es', plugins: () => [engineModuleUrls()] },
     server: { host: '127.0.0.1', fs: { allow: [here] } },
     build: {
       outDir: path.join(here, 'dist', desktop ? 'desktop' : 'web'),

@@ -4,7 +4,7 @@
  */
 import { useCallback, useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import { isApiError, type EngineClient } from '../engine/api/index.ts';
-import { CAUTION } from '../report/index.ts';
+import { APP_CAUTION } from './caution.ts';
 import { platform } from './platform/current.ts';
 import { AppContext, errorText, type AppApi, type Notice, type TaskState } from './state/appContext.ts';
 import {
@@ -395,7 +395,7 @@ export function App(props: { engine: EngineClient }) {
             )}
           </main>
           <footer className="caution" role="note" data-testid="caution">
-            {CAUTION}
+            {APP_CAUTION}
           </footer>
           <div className="notices" aria-live="polite">
             {notices.map((n) => (

@@ -256,3 +256,63 @@ describe('deal and market checks through the protocol', () => {
     expect(r.analysis).toBeNull();
   });
 });
+
+describe('studies through the protocol', () => {
+  it('a study runs with progress and comes back as a plain, sealed study', async () => {
+    const { readFileSync } = await import('node:fs');
+    const deal = JSON.parse(readFileSync('samples/deals/european-call.json', 'utf8'));
+    const market = JSON.parse(readFileSync('samples/market/demo-market.json', 'utf8'));
+    const { DEFAULT_SETTINGS } = await import('../../src/engine/study/index.ts');
+    const { client } = pair(engineHandlers, 0);
+    const stages: string[] = [];
+    const s = await client.call(
+      'study.run',
+      {
+        input: {
+          deal,
+          markets: [market],
+          settings: { ...DEFAULT_SETTINGS, paths: 2048, firstPaths: 1024, batchSize: 1024 },
+        },
+      },
+      { onProgress: (p) => stages.push(p.stage) },
+    );
+    expect(s.format).toBe('factor-triage/study@1');
+    expect(s.hash).toMatch(/^[0-9a-f]{64}$/);
+    expect(s.verdicts.length).toBeGreaterThan(0);
+    expect(stages.length).toBeGreaterThan(0);
+    const v = await client.call('study.verify', { study: s });
+    expect(v, v.message).toMatchObject({ identical: true, hashOk: true, difference: null });
+  });
+  it('a study run cancelled after its first progress report rejects with E_CANCELLED', async () => {
+    const { readFileSync } = await import('node:fs');
+    const deal = JSON.parse(readFileSync('samples/deals/autocallable-memory.json', 'utf8'));
+    const market = JSON.parse(readFileSync('samples/market/demo-market.json', 'utf8'));
+    const { DEFAULT_SETTINGS } = await import('../../src/engine/study/index.ts');
+    const { client } = pair(engineHandlers, 0);
+    const ac = new AbortController();
+    const t0 = Date.now();
+    const e = await rejection(
+      client.call(
+        'study.run',
+        {
+          input: {
+            deal,
+            markets: [market],
+            settings: { ...DEFAULT_SETTINGS, paths: 1 << 20, firstPaths: 4096, batchSize: 1024 },
+          },
+        },
+        { signal: ac.signal, onProgress: (p) => p.stage !== 'calibration' && ac.abort() },
+      ),
+    );
+    expect(isApiError(e) && e.code).toBe(API_ERROR_CODES.cancelled);
+    expect(Date.now() - t0).toBeLessThan(30_000);
+  });
+});
+
+describe('new-document settings', () => {
+  it('equal the engine’s defaults (the UI keeps a copy so its thread does not load the engine)', async () => {
+    const { DEFAULT_SETTINGS: engine } = await import('../../src/engine/study/index.ts');
+    const { DEFAULT_SETTINGS: ui } = await import('../../src/ui/state/document.ts');
+    expect(ui).toEqual(engine);
+  });
+});

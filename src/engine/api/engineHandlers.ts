@@ -12,6 +12,8 @@ import { correlationIssues } from '../market/correlation.ts';
 import { parseSnapshot } from '../market/snapshot.ts';
 import { parseStudyFile, checkStudyHash } from '../study/savedStudy.ts';
 import { diffStudies } from '../study/diff.ts';
+import { runStudy } from '../study/study.ts';
+import { verifyStudy } from '../study/verify.ts';
 import {
   PROTOCOL_VERSION,
   type CorrelationCheck,
@@ -83,10 +85,10 @@ function openStudy(text: string): OpenedStudy {
 
 /**
  * Every method the engine serves by itself. `report.render` is added by the app's worker (the engine does not
- * depend on src/report); `study.run` and `study.verify` are served once the study runner is part of the build.
+ * depend on src/report). Studies run in the thread that serves the protocol (the engine's Web Worker); the
+ * runner yields between batches, so a cancel message is seen between two batches.
  */
-export const engineHandlers: Omit<EngineHandlers, 'report.render' | 'study.run' | 'study.verify'> &
-  Partial<EngineHandlers> = {
+export const engineHandlers: Omit<EngineHandlers, 'report.render'> & Partial<EngineHandlers> = {
   'engine.info': () => ({
     protocol: PROTOCOL_VERSION,
     methods: Object.keys(engineHandlers) as EngineMethod[],
@@ -100,4 +102,14 @@ export const engineHandlers: Omit<EngineHandlers, 'report.render' | 'study.run' 
   'market.checkCorrelation': ({ names, matrix }) => correlationCheck(names, matrix),
   'study.open': ({ text }) => openStudy(text),
   'study.diff': ({ a, b }) => diffStudies(a, b),
+  'study.run': ({ input }, ctx) =>
+    runStudy(input, { signal: ctx.signal, onProgress: (p) => ctx.progress(p), workers: 1 }),
+  'study.verify': async ({ study }, ctx) => {
+    const r = await verifyStudy(study, {
+      signal: ctx.signal,
+      onProgress: (p) => ctx.progress(p),
+      workers: 1,
+    });
+    return { identical: r.ok, hashOk: !r.edited, difference: r.firstDifference, message: r.message };
+  },
 };

@@ -223,7 +223,6 @@ export function DealScreen() {
             path={mark('deal.valuationDate')}
             value={deal.valuationDate ?? ''}
             placeholder="YYYY-MM-DD"
-            compact
             check={(v) =>
               v === '' || /^\d{4}-\d{2}-\d{2}$/.test(v) ? null : 'Valuation date must be written YYYY-MM-DD'
             }
@@ -628,11 +627,18 @@ export function DealScreen() {
                 <button
                   className={deal.name === t.deal.name ? 'current' : ''}
                   onClick={() => {
-                    dispatch({ type: 'setDeal', deal: structuredClone(t.deal) });
-                    notify(
-                      'info',
-                      `Template "${t.deal.name}" loaded; the previous deal is still in the undo of your draft file if saved.`,
+                    const edited = !DEAL_TEMPLATES.some(
+                      (x) => JSON.stringify(x.deal) === JSON.stringify(deal),
                     );
+                    if (
+                      edited &&
+                      !window.confirm(
+                        'Replace the deal you are editing with this template? Save the deal file first to keep it.',
+                      )
+                    )
+                      return;
+                    dispatch({ type: 'setDeal', deal: structuredClone(t.deal) });
+                    notify('info', `Template "${t.deal.name}" loaded.`);
                   }}
                   data-template={t.id}
                 >

@@ -29,13 +29,16 @@ export interface StudyDocument {
   stale: boolean;
 }
 
-/** Study settings for a new document (common practice defaults; every one is editable on the study screen). */
+/**
+ * Study settings for a new document: the same values as the engine's defaults (src/engine/study/study.ts), kept
+ * here as data so the UI thread does not load the engine; every one is editable on the Triage screen.
+ */
 export const DEFAULT_SETTINGS: StudySettings = {
-  seed: 20261123,
-  paths: 32768,
-  firstPaths: 4096,
+  seed: 'factor-triage',
+  paths: 65536,
+  firstPaths: 8192,
   batchSize: 4096,
-  maxStep: 1 / 12,
+  maxStep: 0.25,
   scheme: 'qe',
   alpha: 0.05,
   spending: 'obrienFleming',

@@ -1,0 +1,268 @@
+/**
+ * End-to-end tests of the browser build in Debian's Chromium: the built renderer (vite build) is served by
+ * vite preview on 127.0.0.1 and driven with playwright-core. Screenshots of each screen go to docs/screens.
+ */
+import { describe, it, expect, beforeAll, afterAll } from 'vitest';
+import { build, preview, type PreviewServer } from 'vite';
+import { chromium, type Browser } from 'playwright-core';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { AppPage, CHROMIUM_ARGS, CHROMIUM_PATH } from './appPage.ts';
+import { parseStudyFile, runStudy, verifyStudy, DEFAULT_SETTINGS } from '../../src/engine/study/index.ts';
+import type { DealInput } from '../../src/engine/deal/types.ts';
+import type { MarketSnapshot } from '../../src/engine/market/types.ts';
+
+const root = path.resolve(__dirname, '../..');
+const shots = path.join(root, 'docs', 'screens');
+const work = fs.mkdtempSync(path.join(os.tmpdir(), 'ft-e2e-'));
+let server: PreviewServer;
+let browser: Browser;
+let url = '';
+
+const readJson = <T>(p: string): T => JSON.parse(fs.readFileSync(path.join(root, p), 'utf8')) as T;
+
+beforeAll(async () => {
+  if (!fs.existsSync(CHROMIUM_PATH))
+    throw new Error(
+      `Chromium is not installed at ${CHROMIUM_PATH}: install it (apt-get install -y chromium, as CI does); the browser tests cannot run without it.`,
+    );
+  await build({ configFile: path.join(root, 'vite.config.ts'), logLevel: 'warn' });
+  server = await preview({
+    configFile: path.join(root, 'vite.config.ts'),
+    preview: { host: '127.0.0.1', port: 0, strictPort: false },
+  });
+  url = server.resolvedUrls?.local[0] ?? '';
+  if (!url) throw new Error('vite preview did not report a local URL');
+  browser = await chromium.launch({ executablePath: CHROMIUM_PATH, args: CHROMIUM_ARGS });
+}, 180_000);
+
+afterAll(async () => {
+  await browser?.close();
+  await new Promise<void>((r) => (server ? server.httpServer.close(() => r()) : r()));
+  fs.rmSync(work, { recursive: true, force: true });
+});
+
+describe('browser build', () => {
+  it('first start opens the bundled demo study and shows a verdict per factor, with the caution', async () => {
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.page.waitForSelector('[data-testid=study-results]', { timeout: 30_000 });
+      const verdicts = await app.page.$$('[data-testid^=verdict-]');
+      expect(verdicts.length).toBeGreaterThanOrEqual(1);
+      for (const v of verdicts) expect(await v.$('[data-verdict]')).not.toBeNull();
+      expect(await app.page.textContent('[data-testid=caution]')).toMatch(
+        /not investment advice.*does not replace model validation/,
+      );
+      await app.shot(shots, 'triage');
+      await app.screen('fit');
+      await app.page.waitForSelector('.variant-list');
+      await app.shot(shots, 'fit');
+      expect(app.errors).toEqual([]);
+    } finally {
+      await app.close();
+    }
+  });
+
+  it('a payoff edited into an error shows the error under the offending characters; fixing it clears it', async () => {
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.pickTemplate('european-call');
+      const field = 'deal.events[0].pay.amount';
+      const original = await app.page.inputValue(`[data-path="${field}"]`);
+      await app.fill(field, original + ' + FOO');
+      const markSel = `.expr:has([data-path="${field}"]) .expr-echo mark`;
+      await app.page.waitForSelector(markSel, { timeout: 10_000 });
+      expect(await app.page.textContent(markSel)).toBe('FOO');
+      expect(await app.page.textContent(`.expr:has([data-path="${field}"]) .field-msg`)).toMatch(
+        /unknown name FOO/,
+      );
+      expect(await app.page.textContent('[data-testid=deal-status]')).toMatch(/1 problem/);
+      await app.shot(shots, 'deal-error');
+      await app.fill(field, original);
+      await app.page.waitForFunction(() =>
+        document.querySelector('[data-testid=deal-status]')?.textContent?.includes('No problems'),
+      );
+      expect(await app.page.$(markSel)).toBeNull();
+      await app.shot(shots, 'deal');
+    } finally {
+      await app.close();
+    }
+  });
+
+  it('a bad number keeps the typed text with a message beside the field, also after a reload', async () => {
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.page.waitForSelector('[data-screen=triage]');
+      await app.fill('settings.paths', '12k');
+      const msg = '.field:has([data-path="settings.paths"]) .field-msg';
+      expect(await app.page.textContent(msg)).toMatch(/"12k" is not a number/);
+      await app.page.waitForTimeout(700); // autosave
+      await app.page.reload();
+      await app.page.waitForSelector('[data-path="settings.paths"]');
+      expect(await app.page.inputValue('[data-path="settings.paths"]')).toBe('12k');
+      expect(await app.page.textContent(msg)).toMatch(/not a number/);
+    } finally {
+      await app.close();
+    }
+  });
+
+  it('a correlation matrix that is not PSD is flagged, and the nearest valid matrix is applied only on request', async () => {
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.screen('market');
+      await app.shot(shots, 'market');
+      await app.page.click('[data-tab=correlation]');
+      await app.page.waitForFunction(() =>
+        document.querySelector('[data-testid=psd-status]')?.textContent?.includes('Positive semi-definite'),
+      );
+      await app.fill('correlation.matrix[0][1]', '0.95');
+      await app.fill('correlation.matrix[0][2]', '0.95');
+      await app.fill('correlation.matrix[1][2]', '-0.95');
+      await app.page.waitForSelector('[data-testid=nearest-offer]', { timeout: 10_000 });
+      expect(await app.page.textContent('[data-testid=psd-status]')).toMatch(/Not positive semi-definite/);
+      expect(await app.page.inputValue('[data-path="correlation.matrix[1][2]"]')).toBe('-0.95');
+      await app.shot(shots, 'correlation');
+      await app.page.click('[data-testid=use-nearest]');
+      await app.page.waitForFunction(() =>
+        document.querySelector('[data-testid=psd-status]')?.textContent?.includes('Positive semi-definite'),
+      );
+    } finally {
+      await app.close();
+    }
+  });
+
+  it('changing the threshold and re-running updates the verdicts, with no main-thread task over 200 ms; the saved study verifies in Node', async () => {
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.page.waitForSelector('[data-screen=triage]');
+      await app.pickTemplate('autocallable-memory');
+      await app.smallRun(2048, 512, 512, true);
+      await app.fill('settings.threshold.value', '25');
+      const t0 = await app.now();
+      await app.page.click('[data-testid=run-study]');
+      await app.page.waitForSelector('[data-testid=run-progress]', { timeout: 10_000 });
+      await app.page.waitForFunction(() => !document.querySelector('[data-testid=run-progress]'), undefined, {
+        timeout: 120_000,
+      });
+      expect(await app.page.$('[data-testid=run-error]')).toBeNull();
+      const tau = 25e-4 * readJson<DealInput>('samples/deals/autocallable-memory.json').notional;
+      expect(await app.page.textContent('[data-testid=answer] + p')).toContain(`τ = ${tau} DOM`);
+      expect(await app.page.textContent('[data-testid=doc-title]')).toMatch(/unsaved/);
+      const long = await app.longTasksSince(t0);
+      const worst = Math.max(0, ...long.map((x) => x.duration));
+      expect(worst, `main-thread long tasks during the run: ${JSON.stringify(long)}`).toBeLessThan(200);
+      const saved = await app.download('.top-actions button:text-is("Save")', work);
+      const study = parseStudyFile(JSON.parse(fs.readFileSync(saved, 'utf8')));
+      expect(study.input.settings.threshold).toEqual({ kind: 'bp', value: 25 });
+      // It opens again in the browser and re-runs bit for bit there…
+      await app.upload('.top-actions button:text-is("Open…")', saved);
+      await app.page.waitForFunction(
+        (n) => document.querySelector('[data-testid=doc-title]')?.textContent?.startsWith(n),
+        path.basename(saved),
+      );
+      expect(await app.page.textContent('[data-testid=doc-title]')).not.toMatch(/unsaved/);
+      await app.screen('review');
+      await app.page.click('[data-testid=verify]');
+      await app.page.waitForSelector('[data-testid=verify-result]', { timeout: 120_000 });
+      expect(await app.page.textContent('[data-testid=verify-result]')).toMatch(/Reproduced bit for bit/);
+      // …and from the command line's engine in Node.
+      const v = await verifyStudy(study);
+      expect(v.ok, `browser-made study re-run in Node: ${v.message}`).toBe(true);
+    } finally {
+      await app.close();
+    }
+  });
+
+  it('a run can be cancelled and the previous results stay', async () => {
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.page.waitForSelector('[data-testid=study-results]', { timeout: 30_000 });
+      const before = await app.page.textContent('[data-testid=answer]');
+      await app.pickTemplate('autocallable-memory');
+      await app.smallRun(262144, 4096, 4096, false);
+      await app.page.click('[data-testid=run-study]');
+      await app.page.waitForSelector('[data-testid=run-progress]');
+      await app.page.click('[data-testid=cancel-run]');
+      await app.page.waitForSelector('[data-testid=run-cancelled]', { timeout: 20_000 });
+      expect(await app.page.textContent('[data-testid=answer]')).toBe(before);
+      expect(await app.page.isEnabled('[data-testid=run-study]')).toBe(true);
+    } finally {
+      await app.close();
+    }
+  });
+
+  it('a study made in Node verifies bit for bit in the browser, and two studies can be compared', async () => {
+    const deal = readJson<DealInput>('samples/deals/autocallable-memory.json');
+    const market = readJson<MarketSnapshot>('samples/market/demo-market.json');
+    const base = {
+      ...DEFAULT_SETTINGS,
+      paths: 2048,
+      firstPaths: 512,
+      batchSize: 512,
+      greeks: null,
+      sweeps: null,
+      localVol: false,
+    };
+    const a = await runStudy({ deal, markets: [market], settings: base });
+    const b = await runStudy({
+      deal,
+      markets: [market],
+      settings: { ...base, threshold: { kind: 'bp' as const, value: 40 } },
+    });
+    const fileA = path.join(work, 'node-made.study.json');
+    const fileB = path.join(work, 'node-made-wider.study.json');
+    fs.writeFileSync(fileA, JSON.stringify(a));
+    fs.writeFileSync(fileB, JSON.stringify(b));
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.page.waitForSelector('[data-screen=review]');
+      await app.screen('review');
+      await app.upload('[data-testid=review-open]', fileA);
+      await app.page.waitForFunction(() =>
+        document.querySelector('[data-testid=doc-title]')?.textContent?.startsWith('node-made'),
+      );
+      await app.page.click('[data-testid=verify]');
+      await app.page.waitForSelector('[data-testid=verify-result]', { timeout: 120_000 });
+      expect(await app.page.textContent('[data-testid=verify-result]')).toMatch(/Reproduced bit for bit/);
+      await app.shot(shots, 'review');
+      await app.upload('[data-testid=diff-open]', fileB);
+      await app.page.waitForSelector('[data-testid=diff-settings]', { timeout: 10_000 });
+      expect(await app.page.textContent('[data-testid=diff-settings]')).toMatch(/settings\.threshold\.value/);
+      await app.page.locator('[data-testid=diff-result]').scrollIntoViewIfNeeded();
+      await app.shot(shots, 'diff');
+    } finally {
+      await app.close();
+    }
+  });
+
+  it('an edited or invalid study file is refused with the reason', async () => {
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.page.waitForSelector('[data-screen=triage]');
+      const bad = path.join(work, 'not-a-study.json');
+      fs.writeFileSync(bad, JSON.stringify({ format: 'something-else' }));
+      await app.upload('.top-actions button:text-is("Open…")', bad);
+      const n = await app.page.waitForSelector('.notice-error');
+      expect(await n.textContent()).toMatch(/not-a-study\.json was not opened: .*format/);
+      expect(await app.page.textContent('[data-testid=doc-title]')).not.toMatch(/not-a-study/);
+    } finally {
+      await app.close();
+    }
+  });
+
+  it('exports the report as one self-contained HTML file carrying the caution', async () => {
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.page.waitForSelector('[data-testid=study-results]', { timeout: 30_000 });
+      await app.screen('review');
+      const file = await app.download('[data-testid=export-html]', work);
+      const html = fs.readFileSync(file, 'utf8');
+      expect(html.slice(0, 15).toLowerCase()).toBe('<!doctype html>');
+      expect(html).toMatch(/not investment advice/);
+      expect(html).not.toMatch(/(src|href)=["']https?:/);
+    } finally {
+      await app.close();
+    }
+  });
+});
