@@ -176,6 +176,31 @@ describe('European calls by Monte Carlo agree with closed forms within 3 standar
     expectWithinSe(r, 0, exact, 0.14, 'HHW sigma_v→0 vs BS-HW, rho(S,r)=0.5');
   });
 
+  it('the labelled Euler scheme accepts a variance–rate correlation and keeps S(T)/B(T) a martingale', async () => {
+    // Martingale test (common practice): full truncation's log step has E[exp(−½v⁺h + √(v⁺h) Z)] = 1 exactly.
+    const dyn = { kind: 'heston' as const, v0: 0.05, kappa: 1, theta: 0.05, sigma: 0.5, rho: -0.4 };
+    const v = oneEquity({
+      spot: 100,
+      r: 0.02,
+      dynamics: dyn,
+      hw: { a: 0.05, sigma: 0.01 },
+      rhoSr: 0.3,
+      scheme: 'euler',
+    });
+    v.correlation = {
+      names: ['eq:A', 'var:A', 'rate:DOM'],
+      matrix: [
+        [1, -0.4, 0.3],
+        [-0.4, 1, 0.2],
+        [0.3, 0.2, 1],
+      ],
+    };
+    const r = await run(
+      spec([v], [{ kind: 'discountedAsset', equity: 'A', time: 5 }], { maxStep: 0.25, paths: N }),
+    );
+    expectWithinSe(r, 0, 100, 0.6, 'HHW Euler martingale with rho(v,r)=0.2');
+  });
+
   it('Heston–Hull–White QE with rho(S,r) = 0.6 keeps S(T)/B(T) a martingale at one-year steps', async () => {
     // Martingale test E[S(T)/B(T)] = S0 e^{−qT} (common practice), Grzelak case parameters with rho_sr = 0.6, q = 1%.
     const dyn = { kind: 'heston' as const, v0: 0.05, kappa: 0.3, theta: 0.05, sigma: 0.6, rho: -0.3 };

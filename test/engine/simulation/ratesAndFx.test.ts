@@ -176,6 +176,25 @@ describe('FX and quanto drift', () => {
     expect(3 * columnStats(r.sums).se(0)).toBeLessThan(0.1 * exact * 0.18);
   });
 
+  it('a Heston equity in a foreign currency keeps S·X/B a martingale under QE with its quanto drift', async () => {
+    // E[S(T) X(T)/B_d(T)] = S0 X0 e^{−qT} (common practice); with ρ(v,X) = 0 the drift −ρ σ_X √(h ∫v) offsets the
+    // covariance of the equity residual with the FX increment exactly, step by step.
+    const v = quantoVariant(false);
+    v.equities[0]!.dynamics = { kind: 'heston', v0: 0.06, kappa: 1, theta: 0.05, sigma: 0.7, rho: -0.6 };
+    v.fx[0]!.vol = 0.2;
+    v.correlation = {
+      names: ['eq:B', 'fx:ASHDOM'],
+      matrix: [
+        [1, 0.5],
+        [0.5, 1],
+      ],
+    };
+    const r = await run(
+      spec([v], [{ kind: 'discountedAsset', equity: 'B', time: 5 }], { maxStep: 0.5, paths: N }),
+    );
+    expectWithinSe(r, 0, 130 * Math.exp(-0.2), 0.8, 'foreign Heston equity in domestic');
+  });
+
   it('with Hull–White rates in both currencies the FX forward and the converted foreign equity stay martingales', async () => {
     // Under the domestic bank account: E[X(T)/B_d(T)] = X0 P_f(0,T) and E[S(T) X(T)/B_d(T)] = S0 X0 e^{−qT}
     // (common practice; they check the FX drift r_d − r_f and the quanto drifts of the foreign equity and rate).
