@@ -13,3 +13,4 @@ export * from './sources/hullWhiteBermudanSwaption.ts';
 export * from './sources/dealExerciseSource.ts';
 export * from './exercisePathEvaluator.ts';
 export * from './priceDealExercise.ts';
+export { exercisePayoffFactoryUrl, type ExercisePayoffDescription } from './exercisePayoffFactory.ts';

@@ -8,6 +8,7 @@ import { hullWhiteTreeSwaption } from '../../../src/engine/models/hullWhiteTree.
 import { flatCurve } from '../../../src/engine/market/curve.ts';
 import {
   compareExerciseResults,
+  exercisePayoffFactoryUrl,
   exerciseSeeds,
   makeExercisePathEvaluator,
   priceDealExercise,
@@ -15,6 +16,8 @@ import {
 } from '../../../src/engine/exercise/index.ts';
 import type { ExercisePolicy } from '../../../src/engine/exercise/index.ts';
 import type { VariantSpec } from '../../../src/engine/simulation/types.ts';
+import { batchSeed } from '../../../src/engine/random/index.ts';
+import { inProcessExecutor, resultStats, runSimulation } from '../../../src/engine/simulation/index.ts';
 
 const full = process.env.FT_PROFILE === 'full';
 
@@ -320,6 +323,38 @@ describe('early exercise of deals written in the deal language', () => {
     expect(value, info).toBeGreaterThan(exact - 3 * se);
     expect(d.value, info).toBeLessThan(exact + 3 * d.se);
     expect(Math.abs(value - exact), info).toBeLessThan(0.01 * receiver + 3 * se);
+  });
+
+  it('the simulation runner prices with the saved policy through the exercise payoff factory, on its own batches', async () => {
+    // Consistency: one runner batch uses the streams batchSeed(seed, 0) + ':' + driver, as the source's paths do.
+    const compiled = compileDeal(callableZero(68));
+    const variant = hwVariant(0.08, 0.01, 0.1);
+    const src = dealExerciseSource({ compiled, variant, maxStep: 0.25 });
+    const fit = priceExerciseRight(src, { seed: 'runner', regressionPaths: 3000, pricingPaths: 3000 });
+    const n = 2048;
+    const run = await runSimulation(
+      {
+        variants: [variant],
+        payoff: {
+          factory: exercisePayoffFactoryUrl(),
+          description: { deals: [{ compiled, policies: { hw: fit.policy } }] },
+        },
+        grid: { eventTimes: compiled.gridTimes, maxStep: 0.25 },
+        seed: 'runner-prices',
+        maxPaths: n,
+        batchSize: n,
+      },
+      inProcessExecutor(),
+    );
+    const stats = resultStats(run);
+    const direct = makeExercisePathEvaluator(
+      compiled,
+      fit.policy,
+    )(src.paths(n, batchSeed('runner-prices', 0)));
+    const mean = direct.reduce((s, v) => s + v, 0) / n;
+    expect(Math.abs(stats.mean(0) - mean), `runner ${stats.mean(0)}, direct ${mean}`).toBeLessThan(
+      1e-9 * mean,
+    );
   });
 
   it('rights held by both parties are refused with a message naming the field', () => {
