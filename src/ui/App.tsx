@@ -377,6 +377,16 @@ export function App(props: { engine: EngineClient }) {
             ))}
             <div className="rail-foot">
               <TaskChip task={task} onCancel={cancelTask} />
+              <dl className="keys" aria-label="Keyboard shortcuts">
+                <dt>Alt+1…5</dt>
+                <dd>screens</dd>
+                <dt>Ctrl+Enter</dt>
+                <dd>run study</dd>
+                <dt>Esc</dt>
+                <dd>cancel run</dd>
+                <dt>Ctrl+O / S</dt>
+                <dd>open / save</dd>
+              </dl>
             </div>
           </nav>
           <main className="work" id="work">

@@ -159,6 +159,9 @@ export function parseDraft(text: string | null): { doc: StudyDocument; savedAt: 
 /** A file name for saving, from the deal name. */
 export function suggestedName(doc: StudyDocument): string {
   if (doc.fileName) return doc.fileName.replace(/\.study\.json$/i, '').replace(/\.json$/i, '');
-  const n = (doc.deal?.name ?? 'study').replace(/[^A-Za-z0-9 _.-]+/g, ' ').trim();
+  const n = (doc.deal?.name ?? 'study')
+    .replace(/[^A-Za-z0-9 _.-]+/g, ' ')
+    .replace(/\s+/g, ' ')
+    .trim();
   return n.length ? n.slice(0, 80) : 'study';
 }
