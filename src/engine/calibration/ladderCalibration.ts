@@ -9,7 +9,7 @@
 import type { MarketSnapshot, DiscountCurve } from '../market/types.ts';
 import type { EquityDynamics, EquitySpec, HestonParams, HullWhiteParams } from '../simulation/types.ts';
 import { makeCurve } from '../market/curve.ts';
-import { fail, issue, type FieldIssue } from '../errors.ts';
+import { fail, issue, throwIfErrors, type FieldIssue } from '../errors.ts';
 import { calibrateHeston, type HestonCalibration } from './hestonCalibration.ts';
 import { refitHestonUnderRates, type HestonRefit } from './hestonRefit.ts';
 import { calibrateHullWhite, type HullWhiteCalibration } from './hullWhiteCalibration.ts';
@@ -20,7 +20,7 @@ import {
   type VolTarget,
 } from './blackScholesCalibration.ts';
 import { calibrateLocalVol, type LocalVolCalibration } from './localVolCalibration.ts';
-import { gridQuotes, gridVolAt, equityForward, type VolQuote } from './volGrid.ts';
+import { gridArbitrageIssues, gridQuotes, gridVolAt, equityForward, type VolQuote } from './volGrid.ts';
 import { snapshotCorrelation } from './fxCalibration.ts';
 import type { CalibrationSet } from './chooseCalibrationSet.ts';
 
@@ -321,6 +321,8 @@ function prepare(snapshot: MarketSnapshot, req: LadderCalibrationRequest): Share
         `must exist: ${name} is quoted in ${eq.currency}`,
         undefined,
       );
+    // Every variant fits these quotes: static arbitrage in them is an input error, reported with the quotes.
+    throwIfErrors(gridArbitrageIssues(eq, curves[eq.currency]!, `equities.${name}`), 'E_STATIC_ARBITRAGE');
   }
   const dom = snapshot.domestic;
   const ccys = new Set<string>();

@@ -10,6 +10,9 @@ import { makeCurve } from '../../../src/engine/market/index.ts';
 import { bsHullWhite } from '../../../src/engine/models/index.ts';
 import { gridVolAt } from '../../../src/engine/calibration/volGrid.ts';
 import { FO_HESTON, HULL_HW, syntheticSnapshot } from './syntheticMarket.ts';
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { analyseDeal, compileDeal } from '../../../src/engine/deal/index.ts';
 
 const snap = syntheticSnapshot();
 
@@ -30,6 +33,28 @@ describe('calibration set', () => {
       1, 2, 3, 5,
     ]);
     expect(set.weighting).toMatch(/weight 1/);
+  });
+
+  it('reads the dates, equities and currencies of a deal analysis (the deal layer’s)', () => {
+    // Structural check on an invented sample deal (input only): a 5-year ALDR/DOM payoff with one final date.
+    const deal = JSON.parse(
+      readFileSync(path.resolve(__dirname, '../../../samples/deals/equity-rate-best-of.json'), 'utf8'),
+    );
+    const analysis = analyseDeal(compileDeal(deal));
+    const market = {
+      ...snap,
+      equities: { ALDR: { ...snap.equities.EQD!, spot: 4200 } },
+      rateVols: snap.rateVols,
+    };
+    const set = chooseCalibrationSet(analysis, market);
+    const rows = [...new Set(set.equities.ALDR!.cells.map((c) => c.row))].map(
+      (i) => market.equities.ALDR.vols.expiries[i],
+    );
+    // Last date ≈ 5.005y: the grid expiries bracketing it are 5 (below); none above, so the last one — and at least two.
+    expect(rows).toContain(5);
+    expect(rows.length).toBeGreaterThanOrEqual(2);
+    expect(set.equities.ALDR!.cells.every((c) => c.weight === 1)).toBe(true);
+    expect(Object.keys(set.rates)).toEqual(['DOM']);
   });
 
   it('applies a user override', () => {
