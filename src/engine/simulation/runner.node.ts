@@ -24,6 +24,10 @@ export function makeNodeWorkerExecutor(workers: number = defaultWorkerCount()): 
     ports.push({
       post: (m) => w.postMessage(m),
       onMessage: (h) => w.on('message', (m: FromWorker) => h(m)),
+      onError: (h) => {
+        w.on('error', h);
+        w.on('exit', (code) => h(new Error(`the worker stopped (exit code ${code})`)));
+      },
       terminate: async () => {
         await w.terminate();
       },

@@ -22,7 +22,8 @@ export function serveBatchesInWorker(scope: WorkerScopeLike): void {
 /** The part of a Worker object used here. */
 export interface WorkerLike {
   postMessage(msg: unknown): void;
-  addEventListener(type: 'message', h: (e: { data: unknown }) => void): void;
+  /** `message` events carry `data`; `error` events a `message`. */
+  addEventListener(type: 'message' | 'error', h: (e: { data?: unknown; message?: string }) => void): void;
   terminate(): void;
 }
 

@@ -12,6 +12,8 @@ import type { FromWorker, ToWorker } from './batchServer.ts';
 export interface BatchPort {
   post(msg: ToWorker): void;
   onMessage(handler: (msg: FromWorker) => void): void;
+  /** Optional: called when the worker itself fails (crash, failed start); its pending batches are rejected. */
+  onError?(handler: (error: unknown) => void): void;
   terminate(): Promise<void>;
 }
 
@@ -35,6 +37,21 @@ export function makePoolExecutor(ports: BatchPort[]): BatchExecutor {
       load[pi]!--;
       if (msg.type === 'batch') p.resolve(msg.result);
       else p.reject(new EngineError(msg.error.code, msg.error.message, msg.error.issues));
+    }),
+  );
+  ports.forEach((port, pi) =>
+    port.onError?.((error) => {
+      for (const [key, p] of pending)
+        if (p.port === pi) {
+          pending.delete(key);
+          load[pi]!--;
+          p.reject(
+            new EngineError(
+              'E_WORKER',
+              `a simulation worker failed: ${(error as Error)?.message ?? String(error)}`,
+            ),
+          );
+        }
     }),
   );
   return {

@@ -78,7 +78,9 @@ function fakeWorkerPair(): WorkerLike {
   });
   return {
     postMessage: (m) => setTimeout(() => toWorker.forEach((h) => h({ data: structuredClone(m) })), 0),
-    addEventListener: (_t, h) => toPage.push(h),
+    addEventListener: (t, h) => {
+      if (t === 'message') toPage.push(h);
+    },
     terminate: () => {},
   };
 }

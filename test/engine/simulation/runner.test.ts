@@ -58,6 +58,21 @@ describe('the runner gives the same numbers for any number of workers', () => {
     }
   });
 
+  it('a worker that dies fails the run with a clear error instead of hanging', async () => {
+    const factory = new URL('./fixtures/crashingFactory.ts', import.meta.url).href;
+    const s = {
+      ...spec([bs], payoffs, { maxStep: 0.25, paths: 4000, batchSize: 2000 }),
+      payoff: { factory, description: null },
+      grid: { eventTimes: [1], maxStep: 0.25 },
+    };
+    const w = makeNodeWorkerExecutor(1);
+    try {
+      await expect(runSimulation(s, w)).rejects.toThrow(/simulation worker failed: worker crash/);
+    } finally {
+      await w.close();
+    }
+  });
+
   it('a worker reports a bad input as an EngineError naming the field', async () => {
     const bad = spec([{ ...bs, equities: [{ ...bs.equities[0]!, spot: -1 }] }], payoffs, {
       maxStep: 0.25,
