@@ -44,6 +44,8 @@ export interface DealExerciseSourceSpec {
   maxStep: number;
   evaluator?: DealEvaluatorOptions;
   prepare?: PrepareOptions;
+  /** Antithetic pairs among the fresh normals of the inner paths of the dual bound (default true). */
+  innerAntithetic?: boolean;
 }
 
 /** Times (merged over rights, years) and holder of the deal's exercise rights; all must be held by one party. */
@@ -159,11 +161,11 @@ export function dealExerciseSource(spec: DealExerciseSourceSpec): ExerciseSource
   const funding = compiled.fundingSpread ?? 0;
   // Feature names from a probe evaluation on one path: they depend on the deal and the variant only.
   let stateNames: string[] | undefined;
-  const normalsFor = (seed: string, nPaths: number): Float64Array => {
+  const normalsFor = (seed: string, nPaths: number, antithetic = false): Float64Array => {
     const w = layout.width;
     const out = new Float64Array(normalsBlockSize(grid, layout, nPaths));
     layout.names.forEach((name, d) => {
-      const src = makeNormalSource(makeUniformStream(`${seed}:${name}`));
+      const src = makeNormalSource(makeUniformStream(`${seed}:${name}`), { antithetic });
       const s0 = layout.slot[d]!;
       const width = driverWidth(name);
       for (let k = 0; k < nSteps; k++)
@@ -211,7 +213,7 @@ export function dealExerciseSource(spec: DealExerciseSourceSpec): ExerciseSource
       if (!on) throw new EngineError('E_INTERNAL', 'inner paths need an outer sample drawn by this source');
       const P = outer.nPaths;
       const w = layout.width;
-      const normals = normalsFor(seed, nInner);
+      const normals = normalsFor(seed, nInner, spec.innerAntithetic !== false);
       // Replay the outer path's normals on the steps up to t_j.
       const kj = steps[j]!;
       for (let k = 0; k < kj; k++)

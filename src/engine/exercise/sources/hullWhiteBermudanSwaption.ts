@@ -36,6 +36,8 @@ export interface HullWhiteBermudanSwaptionSpec {
   strike: number;
   accruals?: number[];
   notional?: number;
+  /** Antithetic pairs within the inner paths of the dual bound (default true). */
+  innerAntithetic?: boolean;
 }
 
 /** Builds the exercise source of a Bermudan swaption under Hull–White. */
@@ -78,9 +80,10 @@ export function hullWhiteBermudanSwaptionSource(spec: HullWhiteBermudanSwaptionS
     d0: number,
     v0Start: number,
     df0Start: number,
+    antithetic = false,
   ): ExerciseSample {
     const nd = n - from;
-    const normals = makeNormalSource(makeUniformStream(seed));
+    const normals = makeNormalSource(makeUniformStream(seed), { antithetic });
     const z1 = new Float64Array(nPaths);
     const z2 = new Float64Array(nPaths);
     const x = new Float64Array(nPaths).fill(x0);
@@ -143,7 +146,17 @@ export function hullWhiteBermudanSwaptionSource(spec: HullWhiteBermudanSwaptionS
     continueFrom: (outer, j, p, nInner, seed) => {
       const k = j * outer.nPaths + p;
       const x0 = outer.state[k]! - phi[j]!;
-      return simulate(nInner, seed, j + 1, times[j]!, x0, outer.deflator[k]!, v0[j]!, df0[j]!);
+      return simulate(
+        nInner,
+        seed,
+        j + 1,
+        times[j]!,
+        x0,
+        outer.deflator[k]!,
+        v0[j]!,
+        df0[j]!,
+        spec.innerAntithetic !== false,
+      );
     },
   };
 }
