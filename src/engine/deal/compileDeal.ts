@@ -176,6 +176,14 @@ function lower(L: Lowering, tree: CheckedExpr, field: string, text: string, time
         const c = go(e.c);
         const a = go(e.a);
         const b = go(e.b);
+        // `test ? 1 : 0` of a comparison or logical test is the test itself (its values are already 1 or 0)
+        const cn = nodes[c]!;
+        const isTest =
+          (cn.op === 'binary' && ['lt', 'le', 'gt', 'ge', 'eq', 'ne', 'and', 'or'].includes(cn.fn)) ||
+          (cn.op === 'unary' && cn.fn === 'not');
+        const an = nodes[a]!;
+        const bn = nodes[b]!;
+        if (isTest && an.op === 'num' && an.value === 1 && bn.op === 'num' && bn.value === 0) return c;
         return push({ op: 'select', c, a, b });
       }
       case 'call':
@@ -272,7 +280,9 @@ function lower(L: Lowering, tree: CheckedExpr, field: string, text: string, time
     }
     return push({ op: 'num', value: NaN });
   };
-  go(tree);
+  const root = go(tree);
+  // The root is the last node; a shared or simplified root (e.g. a top-level `test ? 1 : 0`) gets a one-argument copy.
+  if (root !== nodes.length - 1) nodes.push({ op: 'nary', fn: 'max', args: [root] });
   return { field, text, nodes };
 }
 

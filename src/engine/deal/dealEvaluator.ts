@@ -103,7 +103,7 @@ function levelFn(src: LevelSource, at: 'now' | 'start', names: Map<string, strin
   return (env) => env.fxAt(src.units, src.per, at === 'now' ? env.k : 0);
 }
 
-function nodeFn(node: ProgramNode, names: Map<string, string>): NodeFn {
+function nodeFn(node: ProgramNode, names: Map<string, string>, nodes: readonly ProgramNode[]): NodeFn {
   switch (node.op) {
     case 'num':
       return constFill(node.value);
@@ -190,8 +190,11 @@ function nodeFn(node: ProgramNode, names: Map<string, string>): NodeFn {
       }
       break;
     }
-    case 'binary':
-      return binaryFn(node.fn, node.a, node.b);
+    case 'binary': {
+      const ca = nodes[node.a]!.op === 'num' ? (nodes[node.a] as { value: number }).value : null;
+      const cb = nodes[node.b]!.op === 'num' ? (nodes[node.b] as { value: number }).value : null;
+      return binaryScalarFn(node.fn, node.a, node.b, ca, cb) ?? binaryFn(node.fn, node.a, node.b);
+    }
     case 'nary': {
       const args = node.args;
       const isMin = node.fn === 'min';
@@ -224,6 +227,96 @@ function nodeFn(node: ProgramNode, names: Map<string, string>): NodeFn {
 function map1(n: number, a: Float64Array, out: Float64Array, f: (x: number) => number): Float64Array {
   for (let p = 0; p < n; p++) out[p] = f(a[p]!);
   return out;
+}
+
+/**
+ * Binary operations with one constant operand read the scalar instead of a filled buffer (half the memory traffic);
+ * null when the operation has no such form here.
+ */
+function binaryScalarFn(
+  fn: string,
+  ia: number,
+  ib: number,
+  ca: number | null,
+  cb: number | null,
+): NodeFn | null {
+  if (cb !== null && ca === null) {
+    const c = cb;
+    switch (fn) {
+      case 'add':
+        return (env, v, o) => {
+          const a = v[ia]!;
+          for (let p = 0; p < env.n; p++) o[p] = a[p]! + c;
+          return o;
+        };
+      case 'sub':
+        return (env, v, o) => {
+          const a = v[ia]!;
+          for (let p = 0; p < env.n; p++) o[p] = a[p]! - c;
+          return o;
+        };
+      case 'mul':
+        return (env, v, o) => {
+          const a = v[ia]!;
+          for (let p = 0; p < env.n; p++) o[p] = a[p]! * c;
+          return o;
+        };
+      case 'div':
+        return (env, v, o) => {
+          const a = v[ia]!;
+          for (let p = 0; p < env.n; p++) o[p] = a[p]! / c;
+          return o;
+        };
+      case 'lt':
+        return (env, v, o) => {
+          const a = v[ia]!;
+          for (let p = 0; p < env.n; p++) o[p] = a[p]! < c ? 1 : 0;
+          return o;
+        };
+      case 'le':
+        return (env, v, o) => {
+          const a = v[ia]!;
+          for (let p = 0; p < env.n; p++) o[p] = a[p]! <= c ? 1 : 0;
+          return o;
+        };
+      case 'gt':
+        return (env, v, o) => {
+          const a = v[ia]!;
+          for (let p = 0; p < env.n; p++) o[p] = a[p]! > c ? 1 : 0;
+          return o;
+        };
+      case 'ge':
+        return (env, v, o) => {
+          const a = v[ia]!;
+          for (let p = 0; p < env.n; p++) o[p] = a[p]! >= c ? 1 : 0;
+          return o;
+        };
+    }
+  }
+  if (ca !== null && cb === null) {
+    const c = ca;
+    switch (fn) {
+      case 'add':
+        return (env, v, o) => {
+          const b = v[ib]!;
+          for (let p = 0; p < env.n; p++) o[p] = c + b[p]!;
+          return o;
+        };
+      case 'sub':
+        return (env, v, o) => {
+          const b = v[ib]!;
+          for (let p = 0; p < env.n; p++) o[p] = c - b[p]!;
+          return o;
+        };
+      case 'mul':
+        return (env, v, o) => {
+          const b = v[ib]!;
+          for (let p = 0; p < env.n; p++) o[p] = c * b[p]!;
+          return o;
+        };
+    }
+  }
+  return null;
 }
 
 function binaryFn(fn: string, ia: number, ib: number): NodeFn {
@@ -298,7 +391,7 @@ class Runner {
     readonly program: Program,
     names: Map<string, string>,
   ) {
-    this.fns = program.nodes.map((n) => nodeFn(n, names));
+    this.fns = program.nodes.map((n) => nodeFn(n, names, program.nodes));
     this.vals = new Array<Float64Array>(program.nodes.length);
   }
   run(env: Env): Float64Array {
@@ -503,14 +596,16 @@ export function makeDealRunner(compiled: CompiledDeal, opts: DealEvaluatorOption
         env.count = sched.length;
         if (o.kind === 0) {
           const ev = events[o.idx]!;
+          let mask = alive;
           if (ev.when) {
             const c = ev.when.run(env);
             for (let p = 0; p < n; p++) fire[p] = alive[p] !== 0 && c[p] !== 0 ? 1 : 0;
-          } else fire.set(alive);
+            mask = fire;
+          }
           if (ev.pay.length > 0) {
             const col = detailed ? new Float64Array(n) : null;
             for (const { p: pay, r } of ev.pay) {
-              payInto(pay, r.run(env), fire, k, o.time, cash);
+              payInto(pay, r.run(env), mask, k, o.time, cash);
               for (let p = 0; p < n; p++) total[p]! += cash[p]!;
               if (col) for (let p = 0; p < n; p++) col[p]! += cash[p]!;
             }
@@ -518,15 +613,21 @@ export function makeDealRunner(compiled: CompiledDeal, opts: DealEvaluatorOption
           }
           if (ev.set.length > 0) {
             // all updates read the state as it was before the event: compute every value, then assign
-            const next = setScratch.get(o.idx)!;
-            ev.set.forEach(({ r }, j) => next[j]!.set(r.run(env).subarray(0, n)));
+            // (a value is copied only when it is a state array itself, the one case an assignment could overwrite)
+            const scratch = setScratch.get(o.idx)!;
+            const next = ev.set.map(({ r }, j) => {
+              const v = r.run(env);
+              if (r.program.nodes[r.program.nodes.length - 1]!.op !== 'state') return v;
+              scratch[j]!.set(v.subarray(0, n));
+              return scratch[j]!;
+            });
             ev.set.forEach(({ name }, j) => {
               const s = env.state.get(name)!;
               const v = next[j]!;
-              for (let p = 0; p < n; p++) if (fire[p] !== 0) s[p] = v[p]!;
+              for (let p = 0; p < n; p++) if (mask[p] !== 0) s[p] = v[p]!;
             });
           }
-          if (ev.e.terminate) for (let p = 0; p < n; p++) if (fire[p] !== 0) alive[p] = 0;
+          if (ev.e.terminate) for (let p = 0; p < n; p++) if (mask[p] !== 0) alive[p] = 0;
         } else if (detailed) {
           const x = exercises[o.idx]!;
           const value = new Float64Array(n);

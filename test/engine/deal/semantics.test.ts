@@ -285,3 +285,24 @@ describe('initial fixings', () => {
     expect(v[0]).toBeCloseTo(100 * (200 / 50 + 50) * Math.exp(-0.15), 10);
   });
 });
+
+describe('simultaneous state updates', () => {
+  it('swapping two state variables in one event reads both old values (common practice)', () => {
+    const d: DealInput = {
+      ...memoryDeal,
+      state: { a: 1, b: 2 },
+      events: [
+        { on: 'calls', set: { a: 'b', b: 'a' } },
+        { on: 'final', pay: { amount: '10 * a + b' } },
+      ],
+    };
+    // two swaps (t = 1, 2): back to a = 1, b = 2
+    const v = makeDealEvaluator(compileDeal(d))(handBatch([[100, 100, 100, 100]]));
+    expect(v[0]).toBeCloseTo(100 * 12 * Math.exp(-0.15), 10);
+    const once: DealInput = { ...d, schedules: { ...d.schedules, calls: { dates: [1] } } };
+    expect(makeDealEvaluator(compileDeal(once))(handBatch([[100, 100, 100, 100]]))[0]).toBeCloseTo(
+      100 * 21 * Math.exp(-0.15),
+      10,
+    );
+  });
+});

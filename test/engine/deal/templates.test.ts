@@ -178,3 +178,48 @@ describe('the analysis marks compo payments and FX read on the path', () => {
     expect(x.fx).toEqual([{ id: 'ASH/DOM', units: 'DOM', per: 'ASH' }]);
   });
 });
+
+describe('compiled programs are well formed', () => {
+  it('in every template, each node refers only to earlier nodes and the root is the last node', () => {
+    for (const f of files) {
+      const c = checkDeal(load(f)).compiled!;
+      const programs = [
+        ...c.events.flatMap((e) => [
+          ...(e.when ? [e.when] : []),
+          ...e.pay.map((p) => p.amount),
+          ...e.set.map((s) => s.value),
+        ]),
+        ...c.exercise.map((x) => x.amount.amount),
+      ];
+      for (const p of programs) {
+        p.nodes.forEach((n, i) => {
+          const refs =
+            n.op === 'unary'
+              ? [n.a]
+              : n.op === 'binary'
+                ? [n.a, n.b]
+                : n.op === 'select'
+                  ? [n.c, n.a, n.b]
+                  : n.op === 'nary'
+                    ? n.args
+                    : [];
+          for (const r of refs) expect(r, `${f} ${p.field} node ${i}`).toBeLessThan(i);
+        });
+        const used = new Set(
+          p.nodes.flatMap((n) =>
+            n.op === 'unary'
+              ? [n.a]
+              : n.op === 'binary'
+                ? [n.a, n.b]
+                : n.op === 'select'
+                  ? [n.c, n.a, n.b]
+                  : n.op === 'nary'
+                    ? n.args
+                    : [],
+          ),
+        );
+        expect(used.has(p.nodes.length - 1), `${f} ${p.field}: the last node must be the root`).toBe(false);
+      }
+    }
+  });
+});
