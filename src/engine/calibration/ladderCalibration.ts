@@ -21,7 +21,7 @@ import {
 } from './blackScholesCalibration.ts';
 import { calibrateLocalVol, type LocalVolCalibration } from './localVolCalibration.ts';
 import { gridArbitrageIssues, gridQuotes, gridVolAt, equityForward, type VolQuote } from './volGrid.ts';
-import { snapshotCorrelation } from './fxCalibration.ts';
+import { calibrateFx, snapshotCorrelation, type FxCalibration } from './fxCalibration.ts';
 import type { CalibrationSet } from './chooseCalibrationSet.ts';
 
 /** Which stochastic factors a variant has. */
@@ -90,6 +90,8 @@ export interface LadderCalibration {
   variants: VariantCalibration[];
   hullWhite: Record<string, HullWhiteCalibration>;
   localVol: Record<string, LocalVolCalibration>;
+  /** FX pairs into the snapshot's domestic currency from each foreign equity's currency (same in every variant). */
+  fx: Record<string, FxCalibration>;
   seconds: number;
   warnings: FieldIssue[];
 }
@@ -377,6 +379,11 @@ export function calibrateLadder(snapshot: MarketSnapshot, req: LadderCalibration
       localVol[name] = calibrateLocalVol({ name, equity: eq, curve: sh.curves[eq.currency]! });
       warnings.push(...localVol[name]!.warnings);
     }
+  const fx: Record<string, FxCalibration> = {};
+  for (const [name, q] of Object.entries(snapshot.fx ?? {})) {
+    const users = req.equities.filter((e) => snapshot.equities[e]!.currency === q.foreign);
+    if (q.domestic === snapshot.domestic && users.length) fx[name] = calibrateFx(snapshot, name, users);
+  }
   for (const v of variants)
     if (!v.ok)
       warnings.push(
@@ -394,6 +401,7 @@ export function calibrateLadder(snapshot: MarketSnapshot, req: LadderCalibration
     variants,
     hullWhite: sh.hw,
     localVol,
+    fx,
     seconds: (now() - t0) / 1000,
     warnings,
   };

@@ -148,6 +148,28 @@ describe('ladder calibration', () => {
     expect(one.ok).toBe(ladder.ok);
   });
 
+  it('carries the FX pair of the foreign equity with its quanto correlation', () => {
+    expect(L.fx['ASH/DOM']!.spec.vol).toBe(0.1);
+    expect(L.fx['ASH/DOM']!.quanto.EQF!.rho).toBe(-0.2);
+  });
+
+  it('builds the local-vol diagnostic on request and refuses a Monte Carlo refit without its settings', () => {
+    const lv = calibrateLadder(snap, {
+      equities: ['EQD'],
+      factors: { stochVol: false, domRate: false, forRate: false },
+      localVol: true,
+    });
+    expect(lv.localVol.EQD!.dynamics.kind).toBe('localvol');
+    expect(lv.localVol.EQD!.flooredCells).toBe(0);
+    expect(() =>
+      calibrateLadder(snap, {
+        equities: ['EQD'],
+        factors: { stochVol: true, domRate: true, forRate: false },
+        refit: 'monte-carlo',
+      }),
+    ).toThrow(/must give paths and seed/);
+  });
+
   it('asks for rate vols when a currency with a stochastic rate has none', () => {
     const s2 = { ...snap, rateVols: { DOM: snap.rateVols!.DOM! } };
     expect(() =>
