@@ -1,3 +1,17 @@
+/**
+ * Early exercise: Longstaff–Schwartz (2001) regression and pricing passes, the Andersen–Broadie (2004) dual bound,
+ * and the sources that feed them (Bermudan equity options and swaptions, and any deal of the deal language).
+ *
+ * For a ladder of variants (the factor study):
+ * 1. per variant: `priceDealExercise({ compiled, variant, layoutVariants: allVariants, maxStep, settings })` runs the
+ *    regression pass on its own seed stream, the pricing pass and (with `settings.dual`) the dual bound; the result's
+ *    `policy` is plain data to save, `estimate.primal` / `estimate.dual` are the two bounds (the gap
+ *    `estimate.dual.gap` ± `gapSe` belongs in the error budget), `estimate.exerciseProbability` the exercise
+ *    probabilities and `estimate.biasNote` the direction of each bias;
+ * 2. paired comparisons across variants on common random numbers: run the simulation runner with the payoff factory
+ *    `exercisePayoffFactoryUrl()` and description `{ deals: [{ compiled, policies: { [variantId]: policy } }] }`;
+ * 3. verify: re-run step 1 with the same seed and `compareExerciseResults(saved, rerun)` (bit for bit).
+ */
 export * from './types.ts';
 export * from './leastSquares.ts';
 export * from './basis.ts';
