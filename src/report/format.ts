@@ -15,6 +15,7 @@ export function fmt(x: number | null | undefined, sig = 5): string {
   if (x === null || x === undefined || !Number.isFinite(x)) return '—';
   if (x === 0) return '0';
   const a = Math.abs(x);
+  if (Number.isInteger(x) && a < 1e15) return String(x).replace(/\B(?=(\d{3})+(?!\d))/g, ',');
   if (a >= 1e9 || a < 1e-5) return x.toExponential(Math.max(0, sig - 1));
   const digits = Math.max(0, sig - 1 - Math.floor(Math.log10(a)));
   const s = x.toFixed(Math.min(12, digits));

@@ -223,7 +223,7 @@ export function fitHullWhite(
   const curve = makeCurve(curveSpec, `market.curves.${ccy}`);
   const sorted = spec.quotes.slice().sort((a, b) => a.expiry - b.expiry);
   let quotes = sorted.filter((q) => q.expiry + q.tenor <= lastTime + 1e-9);
-  if (quotes.length < 2) quotes = sorted.slice(0, Math.min(2, sorted.length));
+  if (quotes.length < 3) quotes = sorted.slice(0, Math.min(3, sorted.length));
   const cal = calibrateHullWhite({ currency: ccy, curve, rateVols: { ...spec, quotes } });
   const rows: FitRow[] = cal.rows.map((r) => ({
     instrument: `${ccy} ${r.instrument} ${r.expiry}y×${r.tenor}y`,

@@ -98,8 +98,8 @@ export const DEFAULT_SETTINGS: StudySettings = {
     spotBump: 0.01,
     rateBump: 1e-4,
     volBump: 0.01,
-    deltaThreshold: 0.5,
-    vegaThreshold: 0.5,
+    deltaThreshold: 10,
+    vegaThreshold: 5,
     rhoThreshold: 0.5,
   },
   sweeps: { points: 5 },
@@ -226,8 +226,8 @@ function prepare(input: StudyInput): Prepared {
 function fairnessVanillas(
   snapshot: MarketSnapshot,
   analysis: DealAnalysis,
-): (FairnessVanilla & { market: number; vol: number })[] {
-  const out: (FairnessVanilla & { market: number; vol: number })[] = [];
+): (FairnessVanilla & { market: number; vol: number; atm: boolean })[] {
+  const out: (FairnessVanilla & { market: number; vol: number; atm: boolean })[] = [];
   for (const e of analysis.equities) {
     const q = snapshot.equities[e.marketName]!;
     const curve = makeCurve(snapshot.curves[q.currency]!, `market.curves.${q.currency}`);
@@ -243,7 +243,7 @@ function fairnessVanillas(
         const r = -Math.log(curve.df(T)) / T;
         const qq = r - Math.log(F / q.spot) / T;
         const market = bsPrice({ type: isCall ? 'call' : 'put', S: q.spot, K, T, r, q: qq, vol });
-        out.push({ equity: e.marketName, expiry: T, strike: K, isCall, market, vol });
+        out.push({ equity: e.marketName, expiry: T, strike: K, isCall, market, vol, atm: m === 1 });
       }
     }
   }
@@ -592,9 +592,9 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         stats: ColumnStats | null;
         f: (m: number) => Record<number, number> | null;
       }[] = [
-        { greek: 'delta', thr: h.deltaThreshold, stats: final, f: greekW.delta },
-        { greek: 'vega', thr: h.vegaThreshold, stats: vegaStats, f: vegaOf },
-        { greek: 'rho', thr: h.rhoThreshold, stats: final, f: greekW.rho },
+        { greek: 'delta', thr: h.deltaThreshold * 1e-4 * compiled.notional, stats: final, f: greekW.delta },
+        { greek: 'vega', thr: h.vegaThreshold * 1e-4 * compiled.notional, stats: vegaStats, f: vegaOf },
+        { greek: 'rho', thr: h.rhoThreshold * 1e-4 * compiled.notional, stats: final, f: greekW.rho },
       ];
       for (const t of tests) {
         if (!t.stats || k === 0) continue;
@@ -656,12 +656,14 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           } catch {
             iv = q.vol;
           }
+          const dyn = v.spec.equities.find((e) => e.name === q.equity)?.dynamics.kind;
           v.calibration.fit.push({
             instrument: `${q.equity} ${q.isCall ? 'call' : 'put'} K=${Math.round(q.strike * 100) / 100} T=${q.expiry} (Monte Carlo reprice)`,
             marketVol: q.vol,
             modelVol: Number.isFinite(iv) ? iv : q.vol,
             priceError: mc - q.market,
             mcError: { value: mc - q.market, se: st.se(c) },
+            calibrated: dyn !== 'bs' || q.atm,
           });
         });
       });
@@ -908,7 +910,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           );
     if (lvVariant)
       limitations.push(
-        "The local-volatility diagnostic uses Dupire's formula on an SVI fit of the grid, simulated by log-Euler on the study grid (no step-halving check); its vanilla repricing on the study paths is shown with the other variants.",
+        "The local-volatility diagnostic uses Dupire's formula on an SVI fit of the grid, simulated by log-Euler on a weekly grid beside Black–Scholes and Heston on the same normals (no step-halving check); its vanilla repricing on the study paths is shown with the other variants.",
       );
     const assumed = Object.entries(snap.correlationRanges ?? {}).map(([p, r]) => {
       const [a, b] = p.split('|') as [string, string];

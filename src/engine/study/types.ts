@@ -64,7 +64,10 @@ export interface GreekSettings {
   rateBump: number;
   /** Absolute shift of every implied vol in the grid, e.g. 0.01 (one vol point); each variant is recalibrated. */
   volBump: number;
-  /** Thresholds: delta in currency per 1% spot move, vega per vol point, rho per basis point. */
+  /**
+   * Materiality thresholds in basis points of notional: delta per 1% spot move, vega per vol point, rho per basis
+   * point of the domestic curve (e.g. 10, 5, 0.5).
+   */
   deltaThreshold: number;
   vegaThreshold: number;
   rhoThreshold: number;
@@ -95,6 +98,8 @@ export interface FitRow {
   priceError: number;
   /** Monte Carlo reprice on the study's paths minus market price, with SE (evidence of fairness). */
   mcError: ValueSe | null;
+  /** For Monte Carlo rows: whether the vanilla is one of this variant's calibration instruments. */
+  calibrated?: boolean;
 }
 
 /** One model variant of the ladder. */
