@@ -208,6 +208,18 @@ function render(
           `  ${v.id} ${n}: v0 ${f(p.v0, 5)} κ ${f(p.kappa, 4)} θ ${f(p.theta, 5)} σ ${f(p.sigma, 4)} ρ ${f(p.rho, 4)} [${r.refit.status}]${its ? ' — ' + its : ''}`,
         );
       }
+  for (const [name, x] of Object.entries(L.fx)) {
+    io.out('');
+    const q = Object.entries(x.quanto)
+      .map(
+        ([e, v]) =>
+          `ρ(${e}, ${name}) = ${f(v.rho, 2)}${v.range ? ` (plausible ${v.range[0]} … ${v.range[1]})` : ''}`,
+      )
+      .join('; ');
+    io.out(
+      `FX ${name}: spot ${x.spec.spot}, lognormal vol ${f(x.spec.vol * 100, 2)}% in every variant; quanto correlation is an input: ${q}`,
+    );
+  }
   for (const [n, lv] of Object.entries(L.localVol)) {
     io.out('');
     io.out(

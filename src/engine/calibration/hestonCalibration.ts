@@ -1,8 +1,8 @@
 /**
  * Heston calibration to an implied-vol grid by COS pricing (Fang & Oosterlee 2008), optionally under Hull–White
  * rates through the H1-HW characteristic function (Grzelak & Oosterlee 2011). Residuals are vega-weighted price
- * errors (model − market)/vega_market, i.e. first-order implied-vol errors in decimals (common practice); the
- * report also gives exact implied-vol errors at the solution. Several starting points are run, the best kept,
+ * errors (model − market)/vega_market, i.e. first-order implied-vol errors in decimals (common practice), or on
+ * request exact implied-vol errors; the report gives exact implied-vol errors at the solution either way. Several starting points are run, the best kept,
  * and the spread of the others reported. The Feller ratio 2κθ/σ² is a reported diagnostic, not imposed.
  */
 import type { DiscountCurve, EquityQuote } from '../market/types.ts';
@@ -64,6 +64,11 @@ export interface HestonCalibrationInput {
   maxEvaluations?: number;
   /** Fit tolerance on the RMSE of the implied-vol errors, vol points (default 0.5). */
   toleranceVolPoints?: number;
+  /**
+   * Residual of each quote: `vega-price` (default) (model − target price)/vega, a first-order implied-vol error, or
+   * `implied-vol`, the exact implied-vol difference (one Black inversion per quote and evaluation: slower).
+   */
+  residuals?: 'vega-price' | 'implied-vol';
   /** Shift of the target vols per quote (decimals), used by the Monte Carlo-corrected refit. */
   targetShift?: number[];
 }
@@ -227,8 +232,23 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
   const vegaFloor = (q: VolQuote) => Math.max(q.vega, 1e-4 * q.df * q.forward * Math.sqrt(q.expiry));
   const scale = quotes.map(vegaFloor);
   const opts = { rates: input.rates, terms: input.terms };
+  const targetVol = quotes.map((q, i) => q.vol + (shift ? shift[i]! : 0));
   const residuals = (p: Readonly<Record<string, number>>) => {
     const m = hestonModelPrices(p as unknown as HestonParams, quotes, opts);
+    if (input.residuals === 'implied-vol')
+      return m.map((x, i) => {
+        const q = quotes[i]!;
+        const iv = blackImpliedVol({
+          forward: q.forward,
+          strike: q.strike,
+          expiry: q.expiry,
+          df: q.df,
+          isCall: q.isCall,
+          price: x,
+        });
+        // Outside the no-arbitrage bounds: fall back to the first-order error so the fit can move back.
+        return Number.isFinite(iv) ? iv - targetVol[i]! : (x - target[i]!) / scale[i]!;
+      });
     return m.map((x, i) => (x - target[i]!) / scale[i]!);
   };
   const starts = input.starts ?? defaultHestonStarts(quotes);

@@ -94,6 +94,19 @@ describe('Heston calibration', () => {
     expect(r.spread.kappa!.max).toBeGreaterThanOrEqual(r.spread.kappa!.min);
   });
 
+  it('recovers the same parameters with exact implied-vol residuals', () => {
+    const r = calibrateHeston({
+      name: 'EQD',
+      equity: grid,
+      curve,
+      residuals: 'implied-vol',
+      starts: [{ v0: 0.02, kappa: 1.5, theta: 0.04, sigma: 0.5, rho: -0.6 }],
+    });
+    expect(Math.abs(r.params.rho - FO_HESTON.rho), JSON.stringify(r.params)).toBeLessThan(5e-3);
+    expect(Math.abs(r.params.v0 / FO_HESTON.v0 - 1)).toBeLessThan(2e-3);
+    expect(r.rmseVolPoints).toBeLessThan(0.01);
+  });
+
   it('on seeded noisy quotes (0.1 vol point) lands within 3 reported standard errors of each true parameter', () => {
     const rng = seedrandom('heston-noise-1');
     const noisy: EquityQuote = {
