@@ -357,6 +357,30 @@ describe('early exercise of deals written in the deal language', () => {
     );
   });
 
+  it('every variant of a ladder regresses on the same basis; a state that does not vary at a date is left out', () => {
+    // common practice (Longstaff & Schwartz 2001, Sec. 2: the basis is a modelling choice): a fair comparison
+    // across variants needs the same basis wherever the state exists. Under deterministic rates the short rate is
+    // the same on every path, so its terms drop out of the fit at each date.
+    const compiled = compileDeal(callableZero(68));
+    const withRates = priceDealExercise({
+      compiled,
+      variant: hwVariant(0.08, 0.01, 0.1),
+      maxStep: 0.25,
+      settings: { seed: 'basis', regressionPaths: 2000, pricingPaths: 2000 },
+    });
+    const deterministic = priceDealExercise({
+      compiled,
+      variant: { ...bsVariant(100, 0.2, 0.1), correlation: { names: ['eq:ALDR'], matrix: [[1]] } },
+      maxStep: 0.25,
+      settings: { seed: 'basis', regressionPaths: 2000, pricingPaths: 2000 },
+    });
+    expect(JSON.stringify(deterministic.policy.basis)).toBe(JSON.stringify(withRates.policy.basis));
+    const rateIndex = withRates.policy.basis.stateNames.indexOf('rate:DOM');
+    expect(rateIndex).toBeGreaterThanOrEqual(0);
+    expect(withRates.policy.dates[0]!.scale[rateIndex]).toBeGreaterThan(0);
+    expect(deterministic.policy.dates[0]!.scale[rateIndex]).toBe(0);
+  });
+
   it('rights held by both parties are refused with a message naming the field', () => {
     const both: DealInput = {
       ...callableZero(68),
