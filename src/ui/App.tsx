@@ -75,7 +75,7 @@ export function App(props: { engine: EngineClient }) {
   const notify = useCallback((tone: Notice['tone'], text: string) => {
     const id = ++noticeId.current;
     setNotices((n) => [...n.slice(-3), { id, tone, text }]);
-    setTimeout(() => setNotices((n) => n.filter((x) => x.id !== id)), tone === 'error' ? 12_000 : 5_000);
+    setTimeout(() => setNotices((n) => n.filter((x) => x.id !== id)), tone === 'error' ? 12_000 : 3_000);
   }, []);
 
   useEffect(() => {

@@ -78,7 +78,7 @@ describe('browser build', () => {
         /unknown name FOO/,
       );
       expect(await app.page.textContent('[data-testid=deal-status]')).toMatch(/1 problem/);
-      await app.shot(shots, 'deal-error');
+      await app.shot(shots, 'deal-error', `[data-path="${field}"]`);
       await app.fill(field, original);
       await app.page.waitForFunction(() =>
         document.querySelector('[data-testid=deal-status]')?.textContent?.includes('No problems'),
@@ -151,6 +151,10 @@ describe('browser build', () => {
       expect(await app.page.textContent('[data-testid=doc-title]')).toMatch(/unsaved/);
       const long = await app.longTasksSince(t0);
       const worst = Math.max(0, ...long.map((x) => x.duration));
+      const gaps = await app.rafGapsSince(t0);
+      console.info(
+        `run in the browser: longest main-thread task ${worst} ms (${long.length} over 50 ms); longest frame gap ${Math.round(Math.max(0, ...gaps.map((g) => g.duration)))} ms`,
+      );
       expect(worst, `main-thread long tasks during the run: ${JSON.stringify(long)}`).toBeLessThan(200);
       const saved = await app.download('.top-actions button:text-is("Save")', work);
       const study = parseStudyFile(JSON.parse(fs.readFileSync(saved, 'utf8')));

@@ -79,8 +79,15 @@ export class AppPage {
     return p;
   }
 
-  async shot(dir: string, name: string): Promise<void> {
+  /** Saves a screenshot once passing notices have gone (errors stay: they are part of the picture). */
+  async shot(dir: string, name: string, focus?: string): Promise<void> {
     fs.mkdirSync(dir, { recursive: true });
+    await this.page
+      .waitForFunction(() => !document.querySelector('.notice-success, .notice-info'), undefined, {
+        timeout: 6000,
+      })
+      .catch(() => undefined);
+    if (focus) await this.page.$eval(focus, (el) => el.scrollIntoView({ block: 'center' }));
     await this.page.screenshot({ path: path.join(dir, `${name}.png`) });
   }
 

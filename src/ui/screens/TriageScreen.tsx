@@ -3,6 +3,7 @@
  * the threshold, attribution, hedge ratios, correlation sweeps, convergence over the looks, and the costs.
  * The run settings sit in the side panel; a run shows progress and can be cancelled.
  */
+import { memo } from 'react';
 import type { FactorId } from '../../engine/study/rules.ts';
 import { FACTOR_LABELS } from '../../engine/study/rules.ts';
 import type { SavedStudy, StudySettings } from '../../engine/study/types.ts';
@@ -360,7 +361,8 @@ function answerSentence(s: SavedStudy): string {
   return parts.length ? `This deal ${parts.join('; ')}.` : 'The study produced no factor verdicts.';
 }
 
-function StudyResults(props: { study: SavedStudy; stale: boolean }) {
+/** The results of one study; memoised so progress updates during a run do not redraw them. */
+const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stale: boolean }) {
   const s = props.study;
   const ccy = s.input.deal.currency;
   const r = s.results;
@@ -655,7 +657,7 @@ function StudyResults(props: { study: SavedStudy; stale: boolean }) {
       )}
     </div>
   );
-}
+});
 
 /** Exercise probabilities per date, when the study file carries them (callable deals). */
 function ExerciseSection(props: { study: SavedStudy }) {
