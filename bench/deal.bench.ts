@@ -61,8 +61,8 @@ function bench(file: string, maxStep: number): void {
   const pv = ctx.prepared[0]!;
   const evaluate = ctx.evaluators[0]![0]!;
   const batch = pv.simulate(normals, n);
-  const tGen = timePerCall(() => pv.simulate(normals, n).nPaths, 300, 3);
-  const tEval = timePerCall(() => evaluate(batch).length, 300, 3);
+  const tGen = timePerCall(() => pv.simulate(normals, n).nPaths, 300, 5);
+  const tEval = timePerCall(() => evaluate(batch).length, 300, 5);
   const occurrences = compiled.events.reduce((s, e) => s + e.times.length, 0);
   const steps = ctx.grid.times.length - 1;
   console.log(

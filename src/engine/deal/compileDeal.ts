@@ -13,7 +13,7 @@ import {
   type SymbolKind,
 } from './checkExpression.ts';
 import { expandSchedule, isoDayNumber, toYearFraction } from './dealDates.ts';
-import { dealShapeIssues } from './dealSchema.ts';
+import { dealShapeIssues, IDENT } from './dealSchema.ts';
 import {
   COMPILED_FORMAT,
   type CompiledDeal,
@@ -331,7 +331,11 @@ export function checkDeal(raw: unknown): DealCheck {
   // Names: one namespace for underlyings, rate currencies, parameters, state and schedules.
   const symbols: Record<string, SymbolKind> = Object.create(null) as Record<string, SymbolKind>;
   const declare = (name: string, kind: SymbolKind, field: string): void => {
-    if (RESERVED_NAMES.has(name))
+    if (!IDENT.test(name))
+      issues.push(
+        issue('E_BAD_NAME', field, 'must be a name: a letter, then letters, digits or _ (up to 40)', name),
+      );
+    else if (RESERVED_NAMES.has(name))
       issues.push(
         issue(
           'E_RESERVED_NAME',

@@ -306,3 +306,24 @@ describe('simultaneous state updates', () => {
     );
   });
 });
+
+describe('hostile deal files', () => {
+  it('a __proto__ or constructor key in a name table is rejected with its field', () => {
+    const raw = JSON.parse(
+      '{"format":"factor-triage/deal@1","name":"x","notional":1,"currency":"DOM","underlyings":{"__proto__":{"kind":"equity","currency":"DOM"}},"parameters":{"constructor":1},"schedules":{"s":{"dates":[1]}},"events":[{"on":"s","pay":{"amount":"1"}}]}',
+    ) as unknown;
+    const r = checkDeal(raw);
+    expect(r.compiled).toBeUndefined();
+    const fields = r.issues.map((i) => i.field);
+    expect(fields).toContain('deal.underlyings.__proto__');
+    expect(fields).toContain('deal.parameters.constructor');
+    expect(({} as Record<string, unknown>).kind).toBeUndefined();
+  });
+  it('a schedule with more than 20 000 dates is refused before anything is simulated', () => {
+    const r = checkDeal({
+      ...memoryDeal,
+      schedules: { ...memoryDeal.schedules, obs: { start: 0, end: 100, every: '1D' } },
+    });
+    expect(r.issues.map((i) => i.code)).toContain('E_SCHEDULE_TOO_LONG');
+  });
+});
