@@ -3,16 +3,16 @@
  * options', Management Science 50(9)), built from the fitted policy with nested simulation.
  *
  * For a holder's right with deflated exercise payoff Z_j (flows up to t_j plus the exercise value), any martingale
- * π with π_0 = 0 gives V_0 ≤ E[max_j (Z_j − π_j)] (their Sec. 2, the duality of Haugh & Kogan 2004 and Rogers 2002).
+ * π with π_0 = 0 gives V_0 ≤ E[max_j (Z_j − π_j)] (the duality of Haugh & Kogan 2004 and Rogers 2002, restated in their Sec. 2).
  * Andersen & Broadie take π from the policy's own value process L_j: π_j = Σ_{i≤j} (L_i − E_{i−1}[L_i]), where
  * E_{i−1}[L_i] is the policy's continuation value C_{i−1} (estimated by inner paths) and L_i = Z_i where the policy
- * exercises, C_i where it continues (their eqs. 6–8). Writing Q_i for the inner estimate of the deflated flows after
+ * exercises, C_i where it continues (their Sec. 3; section numbers here from memory). Writing Q_i for the inner estimate of the deflated flows after
  * t_i, this gives
  *   Z_j − π_j = L̂_0 + D_j,   D_j = [policy continues at j]·(E_j − Q_j) − Σ_{i<j, policy exercises at i} (E_i − Q_i),
  * with L̂_0 the primal estimate and the date after the last exercise date counted with D = −Σ_{i≤n−1, exercise}(·).
  * The bound is L̂_0 + E[max_j D_j]; the duality gap E[max_j D_j] ≥ 0 is estimated on outer paths independent of the
  * pricing paths, with its own standard error. Inner-path noise makes the estimated gap larger, never smaller
- * (Jensen: E[max] of noisy terms), so the bound stays conservative (their Sec. 3.2).
+ * (Jensen: E[max] of noisy terms), so the bound stays conservative (their discussion of the bias of the nested estimate).
  *
  * For an issuer's right the holder's value is an infimum over stopping times; applying the same result to −Z gives
  * a lower bound L̂_0 − E[max_j D'_j] with D' computed on negated values.
@@ -97,7 +97,7 @@ export function estimateDualGap(
     for (let j = 0; j < n; j++) {
       const k = j * P + p;
       // Sub-optimality checking (Broadie & Cao 2008, 'Improved lower and upper bound algorithms for pricing American
-      // options by simulation', Quantitative Finance 8(8), Sec. 3): a holder never gains by exercising out of the
+      // options by simulation', Quantitative Finance 8(8); section from memory): a holder never gains by exercising out of the
       // money, so such dates leave the maximum and need no inner paths; π telescopes over them. A dead deal
       // (knocked out) has nothing left to continue or to exercise.
       if (outer.alive && outer.alive[k] === 0) continue;

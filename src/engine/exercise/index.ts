@@ -11,6 +11,9 @@
  * 2. paired comparisons across variants on common random numbers: run the simulation runner with the payoff factory
  *    `exercisePayoffFactoryUrl()` and description `{ deals: [{ compiled, policies: { [variantId]: policy } }] }`;
  * 3. verify: re-run step 1 with the same seed and `compareExerciseResults(saved, rerun)` (bit for bit).
+ *
+ * Section, algorithm and equation numbers cited in this folder's comments are given from memory; the papers and
+ * books themselves are the sources.
  */
 export * from './types.ts';
 export * from './leastSquares.ts';

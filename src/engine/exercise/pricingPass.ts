@@ -5,7 +5,7 @@
  *
  * Because the policy was fitted on other paths it is a feasible (hence sub-optimal) stopping rule on these: the
  * estimate is a lower bound in expectation for a holder's right and an upper bound for an issuer's right
- * (Longstaff & Schwartz 2001, Sec. 3, Proposition 1 for the holder; the issuer's case by the same argument with the
+ * (Longstaff & Schwartz 2001, the lower-bound result of their convergence section, from memory, for the holder; the issuer's case by the same argument with the
  * objective reversed).
  */
 import { continuationValues, decides, isEligible, undeflatedExercise } from './continuation.ts';

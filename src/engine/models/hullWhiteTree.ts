@@ -4,21 +4,23 @@
  *
  * Construction: J. Hull, A. White (1994), 'Numerical procedures for implementing term structure models I:
  * single-factor models', J. Derivatives 2(1), 7–16.
- * - Stage 1 (their Sec. 'first stage'): a tree for x = r − α(t), dx = −a x dt + σ dW, x(0) = 0, with node spacing
- *   Δx = √(3V) where V is the variance of one step, so the middle branch carries probability 2/3 − η²/Δx². Each node
- *   branches to the three nodes around its expected value E = x e^{−aΔt}, the centre k = round(E/Δx'), η = E − kΔx',
- *   and the probabilities match the conditional mean and variance:
- *     p_u = 1/6 + (η²/Δx'² + η/Δx')/2,   p_m = 2/3 − η²/Δx'²,   p_d = 1/6 + (η²/Δx'² − η/Δx')/2.
- *   Rounding the centre to the nearest node is the same as their normal/up/down branching switch: it keeps every
- *   probability positive (|η| ≤ Δx'/2 gives p_m ≥ 5/12, p_u, p_d ≥ 1/24) and bounds the width by mean reversion.
+ * - Stage 1 (the paper's first stage): a tree for x = r − α(t), dx = −a x dt + σ dW, x(0) = 0, with node spacing
+ *   Δx = √(3V) where V is the variance of one step. Each node branches to the three nodes around its expected value
+ *   E = x e^{−aΔt}: centre k = round(E/Δx'), offset η = (E − kΔx')/Δx', and the probabilities match the conditional
+ *   mean and variance (V/Δx'² = 1/3):
+ *     p_u = 1/6 + (η² + η)/2,   p_m = 2/3 − η²,   p_d = 1/6 + (η² − η)/2   (η in units of Δx').
+ *   Rounding the centre to the nearest node replaces their switch to up/down branching
+ *   at j_max ≈ 0.184/(aΔt): it also keeps every probability positive (|η| ≤ 1/2 gives p_m ≥ 5/12 and
+ *   p_u, p_d ≥ 1/24) and the width stays bounded through mean reversion (about 1/(2aΔt) nodes each side).
  *   We use the exact Ornstein–Uhlenbeck moments E = x e^{−aΔt}, V = σ²(1 − e^{−2aΔt})/(2a) instead of their
  *   first-order M = −aΔt, V = σ²Δt, and allow unequal steps (Δx' of the next level is √(3V) of the step into it) so
  *   that every event date is a tree date; both are small generalisations of the paper's scheme.
- * - Stage 2 (their eqs. 3–5): forward induction of the Arrow–Debreu prices Q_{i,j}; α_i is chosen so the tree
+ * - Stage 2 (the paper's second stage): forward induction of the Arrow–Debreu prices Q_{i,j}; α_i is chosen so the tree
  *   reprices the discount bond maturing at t_{i+1} exactly:
  *     α_i = ln( Σ_j Q_{i,j} e^{−jΔx_i Δt_i} / P(0, t_{i+1}) ) / Δt_i,
  *     Q_{i+1,k} = Σ_j Q_{i,j} p_{j→k} e^{−(α_i + jΔx_i)Δt_i}.
  * The rate at node (i, j) is the Δt_i-period continuously compounded rate r = α_i + jΔx_i.
+ * Section and equation numbers cited in this file are given from memory.
  */
 import { fail, requirePositive } from '../errors.ts';
 import type { DiscountCurve } from '../market/types.ts';
@@ -123,7 +125,7 @@ export function buildHullWhiteTree(
   }
   nodeOffset[N] = centreL.length;
 
-  // Stage 2: forward induction of Arrow–Debreu prices, α_i fitted to P(0, t_{i+1}) (Hull & White 1994, eqs. 3–5).
+  // Stage 2: forward induction of Arrow–Debreu prices, α_i fitted to P(0, t_{i+1}) (Hull & White 1994, second stage).
   let q = new Float64Array(1).fill(1);
   for (let i = 0; i < N; i++) {
     const h = times[i + 1]! - times[i]!;

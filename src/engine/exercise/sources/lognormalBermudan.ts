@@ -1,7 +1,7 @@
 /**
  * Bermudan put or call on one equity under Black–Scholes with a flat rate and dividend yield, as an
  * {@link ExerciseSource}: exact lognormal steps between exercise dates (Glasserman 2003, *Monte Carlo Methods in
- * Financial Engineering*, Sec. 3.2.1, eq. 3.23: S(t+Δ) = S(t) exp((r − q − σ²/2)Δ + σ√Δ Z)), state = the equity
+ * Financial Engineering*, Sec. 3.2.1 (section from memory): S(t+Δ) = S(t) exp((r − q − σ²/2)Δ + σ√Δ Z)), state = the equity
  * level, exercise value max(K − S, 0) (put) or max(S − K, 0) (call), deflated by e^{−rt}. The right is the holder's.
  */
 import { fail, requireNonNegative, requirePositive } from '../../errors.ts';
