@@ -18,6 +18,7 @@
  * (any ρ(S,r)) with the martingale correction of Andersen (2008), Sec. 7.2: the ∫r in the equity's log step and in
  * the discount cancel pathwise, and the equity residual R = W_S − ρ W_v is Gaussian and independent of the variance
  * draw (ρ(v,r) = 0), so the correction that makes E[exp(K0* + K1 V + K2 V' + √(∫v) R) | V] = 1 is Andersen's own.
+ * Equation and section numbers of Andersen (2008) cited below are from memory (not re-checked against the paper).
  * Approximations: under Heston-QE the equity–rate covariance within a step uses the step's mean variance; between two
  * correlated Hull–White rates the within-step residuals of ∫x (beyond their Brownian increments) are independent.
  */
