@@ -77,14 +77,14 @@ describe('Bermudan put under Black–Scholes by Longstaff–Schwartz', () => {
   for (const r of rows) {
     it(`S=${r.S}, σ=${r.vol}, T=${r.T}: matches the LSM value of Table 1 within 3 combined SE and stays below the FD American value`, () => {
       // Basis: degree-3 polynomial in the standardised spot (4 functions), the size of the paper's basis (constant
-      // plus three weighted Laguerre polynomials, Sec. 3), on in-the-money paths only.
+      // plus three weighted Laguerre polynomials; from memory), on in-the-money paths only.
       const res = priceExerciseRight(source(r.S, r.vol, r.T), { seed: 2001, degree: 3, ...paths });
       const { value, se } = res.estimate.primal;
       const tol = 3 * Math.sqrt(se * se + r.se * r.se);
       const info = `S=${r.S} vol=${r.vol} T=${r.T}: LSM ${value.toFixed(4)} ± ${se.toFixed(4)}, table LSM ${r.lsm} ± ${r.se}, FD ${r.fd}`;
       expect(se, `${info}: SE cap`).toBeLessThan(full ? 0.02 : 0.04);
       expect(Math.abs(value - r.lsm), `${info}: tolerance ${tol.toFixed(4)}`).toBeLessThan(tol);
-      // Lower-bound property (Longstaff & Schwartz 2001, Sec. 3, Proposition 1) and Bermudan ≤ American.
+      // Lower-bound property (Longstaff & Schwartz 2001, their lower-bound result, from memory) and Bermudan ≤ American.
       expect(value - 3 * se, `${info}: lower bound`).toBeLessThan(r.fd);
       expect(value + 3 * se + BERMUDAN_GAP, `${info}: distance to FD`).toBeGreaterThan(r.fd);
       // Above the European value (early exercise is worth something for a put with r > 0).

@@ -24,14 +24,14 @@ describe('solveLeastSquares', () => {
 
   it('matches the normal-equation solution of a small well-conditioned problem', () => {
     // Worked here: y = [1, 2, 2, 4] on x = [0, 1, 2, 3], straight-line fit. Normal equations
-    // [4 6; 6 14] β = [9; 18] give β = (0.9, 0.9) (Golub & Van Loan 2013, Sec. 5.3.1, the normal equations).
+    // [4 6; 6 14] β = [9; 18] give β = (0.9, 0.9) (Golub & Van Loan 2013, the normal equations of Sec. 5.3; section from memory).
     const r = solveLeastSquares(cols([0, 1, 2, 3], 1), Float64Array.from([1, 2, 2, 4]));
     expect(Math.abs(r.coefficients[0]! - 0.9)).toBeLessThan(1e-14);
     expect(Math.abs(r.coefficients[1]! - 0.9)).toBeLessThan(1e-14);
   });
 
   it('is insensitive to column scale: scaling a regressor by 1e8 scales its coefficient by 1e-8', () => {
-    // common practice: least squares is equivariant under column scaling; column equilibration (Björck 1996,
+    // common practice: least squares is equivariant under column scaling; column equilibration (Björck 1996, section from memory,
     // Sec. 2.8.1) must preserve it to rounding.
     const xs = Array.from({ length: 30 }, (_, i) => i / 29);
     const y = Float64Array.from(xs, (x) => Math.sin(3 * x));
@@ -58,7 +58,7 @@ describe('solveLeastSquares', () => {
   });
 
   it('solves an ill-conditioned degree-9 fit on [0,1] far better than normal equations could', () => {
-    // Monomials on [0,1] of degree 9 have condition number ~1e13 (Golub & Van Loan 2013, Sec. 5.3.8 on the
+    // Monomials on [0,1] of degree 9 have condition number ~1e13 (Golub & Van Loan 2013, Ch. 5, section from memory, on the
     // sensitivity of normal equations, which square the condition number and would lose every digit here).
     const xs = Array.from({ length: 60 }, (_, i) => i / 59);
     const truth = Array.from({ length: 10 }, (_, d) => 1 / (d + 1));
