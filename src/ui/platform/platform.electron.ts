@@ -47,6 +47,9 @@ export const platform: Platform = {
     const f = await unwrap(bridge().openRecent({ path: handle }));
     return { name: f.name, text: f.text, handle: f.path };
   },
+  async reveal(handle) {
+    await unwrap(bridge().reveal({ path: handle }));
+  },
   setDocumentState(state) {
     void bridge().setDocumentState(state);
   },

@@ -43,6 +43,8 @@ export interface Platform {
   }): Promise<SavedTarget | null>;
   recentFiles(): Promise<RecentFile[]>;
   openRecent(handle: string): Promise<PickedFile>;
+  /** Shows a saved or opened file in the system file manager (desktop only; the browser has no paths). */
+  reveal: ((handle: string) => Promise<void>) | null;
   /** Tells the host about unsaved changes so closing can ask first. */
   setDocumentState(state: { dirty: boolean; title: string }): void;
   /** Menu commands from the host (desktop); returns the unsubscribe function. */

@@ -70,6 +70,7 @@ export const platform: Platform = {
   async openRecent() {
     throw new Error('the browser build has no recent-files list; open the file again');
   },
+  reveal: null,
   setDocumentState() {
     /* the browser asks through beforeunload (see useUnsavedGuard) */
   },

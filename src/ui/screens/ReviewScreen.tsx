@@ -138,6 +138,18 @@ export function ReviewScreen() {
             <button onClick={() => void app.saveStudy(false)} disabled={!s} data-testid="review-save">
               Save study
             </button>
+            {platform.reveal && doc.handle && (
+              <button
+                onClick={() => {
+                  const h = doc.handle!;
+                  platform.reveal!(h).catch((e) =>
+                    notify('error', `Could not show the file: ${errorText(e)}`),
+                  );
+                }}
+              >
+                Show in folder
+              </button>
+            )}
           </div>
           {recent.length > 0 && (
             <>
