@@ -202,6 +202,87 @@ export function treeZeroBond(tree: HullWhiteTree, T: number): number {
   return v[0]!;
 }
 
+/**
+ * Exercise step: the option becomes continuation + max(g, 0), with g = exercise value − continuation, averaged over
+ * each node's cell with g linear across it (payoff smoothing; Heston & Zhou 2000, 'On the rate of convergence of
+ * discrete-time contingent claims', Math. Finance 10(1): it removes the odd–even oscillation that a kink between
+ * nodes causes, leaving a smooth first-order error). The cell average of max(u + s·y, 0), y ∈ [−½, ½], is u when
+ * u ≥ |s|/2, 0 when u ≤ −|s|/2, and (u + |s|/2)² / (2|s|) otherwise.
+ */
+function addSmoothedGain(option: Float64Array, gain: Float64Array): void {
+  const nn = gain.length;
+  for (let j = 0; j < nn; j++) {
+    const u = gain[j]!;
+    const s =
+      nn === 1
+        ? 0
+        : j === 0
+          ? gain[1]! - u
+          : j === nn - 1
+            ? u - gain[j - 1]!
+            : (gain[j + 1]! - gain[j - 1]!) / 2;
+    const h = Math.abs(s) / 2;
+    const avg = u >= h ? u : u <= -h ? 0 : ((u + h) * (u + h)) / (4 * h);
+    option[j] = option[j]! + avg;
+  }
+}
+
+/** A European or Bermudan option on a zero-coupon bond (face paid at `maturity`). */
+export interface TreeBondOptionSpec {
+  type: 'call' | 'put';
+  /** Exercise dates (years), before the maturity. */
+  exerciseTimes: number[];
+  /** Bond maturity (years). */
+  maturity: number;
+  /** Cash strike per option (same units as `face`). */
+  strike: number;
+  /** Face of the bond (default 1). */
+  face?: number;
+}
+
+/** Prices an option on a zero-coupon bond on the tree by backward induction (smoothed exercise). */
+export function treeBondOption(tree: HullWhiteTree, spec: TreeBondOptionSpec): number {
+  const face = spec.face ?? 1;
+  const iT = treeIndex(tree, spec.maturity, 'bondOption.maturity');
+  const exIdx = new Set(
+    spec.exerciseTimes.map((t, i) => {
+      const k = treeIndex(tree, t, `bondOption.exerciseTimes[${i}]`);
+      if (k >= iT)
+        fail('E_BOND_OPTION', `bondOption.exerciseTimes[${i}]`, 'must be before the bond maturity', t);
+      return k;
+    }),
+  );
+  const sign = spec.type === 'call' ? 1 : -1;
+  let bond: Float64Array = new Float64Array(2 * tree.width[iT]! + 1).fill(face);
+  let option: Float64Array = new Float64Array(bond.length);
+  for (let i = iT - 1; i >= 0; i--) {
+    bond = rollBack(tree, i, bond);
+    option = rollBack(tree, i, option);
+    if (exIdx.has(i)) {
+      const gain = new Float64Array(bond.length);
+      for (let j = 0; j < bond.length; j++) gain[j] = sign * (bond[j]! - spec.strike) - option[j]!;
+      addSmoothedGain(option, gain);
+    }
+  }
+  return option[0]!;
+}
+
+/**
+ * Bond option by two smoothed trees (every step halved in the second) and Richardson extrapolation, as
+ * {@link hullWhiteTreeSwaption}.
+ */
+export function hullWhiteTreeBondOption(
+  curve: DiscountCurve,
+  params: { a: number; sigma: number },
+  spec: TreeBondOptionSpec,
+  maxStep = 0.01,
+): { value: number; coarse: number; fine: number } {
+  const eventTimes = [spec.maturity, ...spec.exerciseTimes];
+  const coarse = treeBondOption(buildHullWhiteTree(curve, params, { eventTimes, maxStep }), spec);
+  const fine = treeBondOption(buildHullWhiteTree(curve, params, { eventTimes, maxStep, refine: 2 }), spec);
+  return { value: 2 * fine - coarse, coarse, fine };
+}
+
 /** A Bermudan (or, with one exercise date, European) swaption on a fixed-for-floating swap, single curve. */
 export interface TreeSwaptionSpec {
   /** `payer`: the right to pay fixed; `receiver`: to receive fixed. */
@@ -255,28 +336,9 @@ export function treeBermudanSwaption(tree: HullWhiteTree, spec: TreeSwaptionSpec
     }
     // Exercise first (the coupon bond holds only payments after t_i), then add the payments made at t_i.
     if (exIdx.has(i)) {
-      // Exercise gain g = swap − continuation at each node, then the option becomes continuation + max(g, 0)
-      // averaged over the node's cell with g linear across it (payoff smoothing; Heston & Zhou 2000, 'On the rate
-      // of convergence of discrete-time contingent claims', Math. Finance 10(1), removes the odd–even oscillation
-      // a kink between nodes causes). The cell average of max(u + s·y, 0), y ∈ [−½, ½], is u when u ≥ |s|/2, 0 when
-      // u ≤ −|s|/2, and (u + |s|/2)² / (2|s|) otherwise.
-      const nn = bond.length;
-      const gain = new Float64Array(nn);
-      for (let j = 0; j < nn; j++) gain[j] = sign * (1 - bond[j]!) - option[j]!;
-      for (let j = 0; j < nn; j++) {
-        const u = gain[j]!;
-        const s =
-          nn === 1
-            ? 0
-            : j === 0
-              ? gain[1]! - u
-              : j === nn - 1
-                ? u - gain[j - 1]!
-                : (gain[j + 1]! - gain[j - 1]!) / 2;
-        const h = Math.abs(s) / 2;
-        const avg = u >= h ? u : u <= -h ? 0 : ((u + h) * (u + h)) / (4 * h);
-        option[j] = option[j]! + avg;
-      }
+      const gain = new Float64Array(bond.length);
+      for (let j = 0; j < bond.length; j++) gain[j] = sign * (1 - bond[j]!) - option[j]!;
+      addSmoothedGain(option, gain);
     }
     payIdx.forEach((pi, c) => {
       if (pi !== i) return;

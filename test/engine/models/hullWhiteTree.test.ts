@@ -1,6 +1,7 @@
 import { describe, it, expect } from 'vitest';
 import {
   buildHullWhiteTree,
+  hullWhiteTreeBondOption,
   hullWhiteTreeSwaption,
   treeBermudanSwaption,
   treeZeroBond,
@@ -84,6 +85,55 @@ describe('Hull–White trinomial tree', () => {
     const ratio = (r.coarse - CASE_VALUE) / (r.fine - CASE_VALUE);
     expect(ratio, `coarse ${r.coarse}, fine ${r.fine}, exact ${CASE_VALUE}`).toBeGreaterThan(1.7);
     expect(ratio).toBeLessThan(2.3);
+  });
+
+  it('prices the Hull zero-bond option problem: call 0.439 (published) and its put companion', () => {
+    // Hull, OFOD, short-rate chapter problem via /work/shared/reference/published.md, Sec. 1 (from memory; QuantLib
+    // 0.438949559957 = Brigo & Mercurio (3.40)): 1y call on a 5y zero, face 100, K = 68, a = 0.08, σ = 0.01, flat
+    // 10 %. Put companion constructed there (not published): 1.31482801514.
+    const curve = flatCurve('DOM', 0.1);
+    const params = { a: 0.08, sigma: 0.01 };
+    const call = hullWhiteTreeBondOption(
+      curve,
+      params,
+      { type: 'call', exerciseTimes: [1], maturity: 5, strike: 68, face: 100 },
+      0.02,
+    );
+    const put = hullWhiteTreeBondOption(
+      curve,
+      params,
+      { type: 'put', exerciseTimes: [1], maturity: 5, strike: 68, face: 100 },
+      0.02,
+    );
+    expect(Math.abs(call.value - 0.438949559957), `tree ${call.value}`).toBeLessThan(1e-4);
+    expect(Math.abs(call.value - 0.439)).toBeLessThan(0.0005);
+    expect(Math.abs(put.value - 1.31482801514), `tree ${put.value}`).toBeLessThan(1e-4);
+  });
+
+  it('matches the analytic zero-bond options (makeHullWhite) on a sloped curve, and a Bermudan put is worth more', () => {
+    // Brigo & Mercurio (2006), eqs. (3.40)–(3.41) (numbers from memory), via the analytic model of the project.
+    const params = { a: 0.12, sigma: 0.011 };
+    const hw = makeHullWhite(sloped, params);
+    for (const type of ['call', 'put'] as const) {
+      const exact = hw.zeroBondOption({ type, T: 2, S: 7, strike: 0.85 });
+      const tree = hullWhiteTreeBondOption(
+        sloped,
+        params,
+        { type, exerciseTimes: [2], maturity: 7, strike: 0.85 },
+        0.02,
+      );
+      expect(Math.abs(tree.value - exact), `${type}: tree ${tree.value}, closed form ${exact}`).toBeLessThan(
+        2e-5,
+      );
+    }
+    const euro = hw.zeroBondOption({ type: 'put', T: 2, S: 7, strike: 0.85 });
+    const berm = hullWhiteTreeBondOption(
+      sloped,
+      params,
+      { type: 'put', exerciseTimes: [1, 2], maturity: 7, strike: 0.85 },
+      0.02,
+    );
+    expect(berm.value).toBeGreaterThan(euro);
   });
 
   it('matches Jamshidian European swaptions (makeHullWhite) on a sloped curve, payer and receiver', () => {
