@@ -119,7 +119,7 @@ export interface PreparedCosSlice {
 
 /**
  * Prepares a slice with range ln(S_T/F) ∈ [lo, lo + width]. A calibration takes lo = −½σ̄²T − L·σ_max√T and
- * width = 2L·σ_max√T from the market vols of the slice (common practice), wide enough for any model fitting them.
+ * width = 2L·σ_max√T (L = 12) from the market vols of the slice (common practice), wide enough for a model fitting them.
  */
 export function prepareCosSlice(o: {
   forward: number;
