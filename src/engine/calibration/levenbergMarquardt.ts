@@ -85,6 +85,8 @@ const now = () => (typeof performance !== 'undefined' ? performance.now() : Date
 interface Transform {
   toP(z: number): number;
   toZ(p: number): number;
+  /** dp/dz at z. */
+  dPdZ(z: number): number;
 }
 
 function transformFor(par: FitParameter): Transform {
@@ -93,6 +95,10 @@ function transformFor(par: FitParameter): Transform {
   if (lo !== undefined && hi !== undefined)
     return {
       toP: (z) => lo + (hi - lo) / (1 + Math.exp(-z)),
+      dPdZ: (z) => {
+        const e = 1 / (1 + Math.exp(-z));
+        return (hi - lo) * e * (1 - e);
+      },
       toZ: (p) => {
         const span = hi - lo;
         const x = Math.min(Math.max((p - lo) / span, 1e-9), 1 - 1e-9);
@@ -100,12 +106,20 @@ function transformFor(par: FitParameter): Transform {
       },
     };
   if (lo !== undefined)
-    return { toP: (z) => lo + Math.exp(z), toZ: (p) => Math.log(Math.max(p - lo, 1e-12)) };
+    return {
+      toP: (z) => lo + Math.exp(z),
+      toZ: (p) => Math.log(Math.max(p - lo, 1e-12)),
+      dPdZ: (z) => Math.exp(z),
+    };
   if (hi !== undefined)
-    return { toP: (z) => hi - Math.exp(z), toZ: (p) => Math.log(Math.max(hi - p, 1e-12)) };
+    return {
+      toP: (z) => hi - Math.exp(z),
+      toZ: (p) => Math.log(Math.max(hi - p, 1e-12)),
+      dPdZ: (z) => -Math.exp(z),
+    };
   // Unbounded: scaled by the starting magnitude so every z is of order one (steps and tolerances compare alike).
   const sc = Math.abs(par.initial) > 1e-12 ? Math.abs(par.initial) : 1;
-  return { toP: (z) => z * sc, toZ: (p) => p / sc };
+  return { toP: (z) => z * sc, toZ: (p) => p / sc, dPdZ: () => sc };
 }
 
 /** Fits the free parameters of `problem` and returns a full report (never throws for a poor fit: see `converged`). */
@@ -142,6 +156,25 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
   const jacobianZ = (z: number[], r0: number[]): number[][] => {
     const m = r0.length;
     const J = Array.from({ length: m }, () => new Array<number>(n).fill(0));
+    if (problem.jacobian) {
+      // Analytic ∂r/∂p of the instruments, chained with dp/dz and the weights; penalty rows by differences.
+      const params = toParams(z);
+      const Jp = problem.jacobian(params);
+      const mi = m - enforced.length;
+      for (let i = 0; i < mi; i++)
+        for (let j = 0; j < n; j++) J[i]![j] = Jp[i]![j]! * tr[j]!.dPdZ(z[j]!) * (weights ? weights[i]! : 1);
+      for (let j = 0; j < n && enforced.length; j++) {
+        const h = 1e-7 * Math.max(1, Math.abs(z[j]!));
+        const zj = z.slice();
+        zj[j] = z[j]! + h;
+        const pj = toParams(zj);
+        enforced.forEach((c, k) => {
+          const v1 = (c.penaltyWeight ?? 100) * Math.max(0, -c.g(pj));
+          J[mi + k]![j] = (v1 - r0[mi + k]!) / h;
+        });
+      }
+      return J;
+    }
     for (let j = 0; j < n; j++) {
       const h = 1e-7 * Math.max(1, Math.abs(z[j]!));
       const zj = z.slice();

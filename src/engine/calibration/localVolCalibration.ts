@@ -26,6 +26,8 @@ export interface LocalVolCalibration {
   surface: SviSurface;
   /** Cells where Dupire's formula had to be floored. */
   flooredCells: number;
+  /** Local vol has no characteristic function: vanillas need the PDE or Monte Carlo (its cost in the ladder). */
+  characteristicFunction: 'none';
   warnings: FieldIssue[];
   seconds: number;
 }
