@@ -98,6 +98,7 @@ export function calibrateLocalVol(input: {
     dynamics: { kind: 'localvol', times, logK, values },
     surface,
     flooredCells: floored,
+    characteristicFunction: 'none',
     warnings,
     seconds: (now() - t0) / 1000,
   };
