@@ -316,3 +316,34 @@ describe('new-document settings', () => {
     expect(ui).toEqual(engine);
   });
 });
+
+describe('calibration stability through the protocol', () => {
+  it('reports one parameter path per model parameter over the dates of the series, in date order', async () => {
+    const { readFileSync, readdirSync } = await import('node:fs');
+    const dir = 'samples/market/series';
+    const snapshots = readdirSync(dir)
+      .sort()
+      .reverse()
+      .map((f) => JSON.parse(readFileSync(`${dir}/${f}`, 'utf8')));
+    const { client } = pair(engineHandlers);
+    const r = await client.call('calibration.stability', {
+      snapshots,
+      equities: ['ALDR'],
+      currencies: ['DOM'],
+    });
+    expect(r.dates).toEqual([...r.dates].sort());
+    expect(r.paths.map((p) => `${p.model}.${p.parameter}`)).toEqual(
+      expect.arrayContaining(['heston:ALDR.v0', 'heston:ALDR.rho', 'hull-white:DOM.a']),
+    );
+    for (const p of r.paths) expect(p.values).toHaveLength(snapshots.length);
+  });
+  it('refuses a single snapshot with the reason', async () => {
+    const { readFileSync } = await import('node:fs');
+    const m = JSON.parse(readFileSync('samples/market/demo-market.json', 'utf8'));
+    const { client } = pair(engineHandlers);
+    const e = await rejection(
+      client.call('calibration.stability', { snapshots: [m], equities: ['ALDR'], currencies: [] }),
+    );
+    expect(isApiError(e) && e.code).toBe('E_TOO_FEW_SNAPSHOTS');
+  });
+});

@@ -14,6 +14,7 @@ import { parseStudyFile, checkStudyHash } from '../study/savedStudy.ts';
 import { diffStudies } from '../study/diff.ts';
 import { runStudy } from '../study/study.ts';
 import { verifyStudy } from '../study/verify.ts';
+import { calibrationStability } from '../calibration/calibrationStability.ts';
 import {
   PROTOCOL_VERSION,
   type CorrelationCheck,
@@ -100,6 +101,8 @@ export const engineHandlers: Omit<EngineHandlers, 'report.render'> & Partial<Eng
     return { errors: r.errors };
   },
   'market.checkCorrelation': ({ names, matrix }) => correlationCheck(names, matrix),
+  'calibration.stability': ({ snapshots, equities, currencies }) =>
+    calibrationStability(snapshots, { equities, currencies }),
   'study.open': ({ text }) => openStudy(text),
   'study.diff': ({ a, b }) => diffStudies(a, b),
   'study.run': ({ input }, ctx) =>

@@ -10,6 +10,8 @@ import type { DealAnalysis } from '../deal/types.ts';
 import type { CheckResult, ExpressionContext } from '../deal/checkExpression.ts';
 import type { SavedStudy, StudyInput } from '../study/types.ts';
 import type { StudyDiff } from '../study/diff.ts';
+import type { StabilityReport } from '../calibration/calibrationStability.ts';
+import type { MarketSnapshot } from '../market/types.ts';
 
 /** Version of the message format; a client and a server of different versions refuse each other. */
 export const PROTOCOL_VERSION = 1;
@@ -71,6 +73,11 @@ export interface EngineMethods {
   'deal.checkExpression': { args: { text: string; context: ExpressionContext }; result: CheckResult };
   /** Checks a correlation matrix and offers the nearest valid one when it is not positive semi-definite. */
   'market.checkCorrelation': { args: { names: string[]; matrix: number[][] }; result: CorrelationCheck };
+  /** Calibrates Heston per equity and Hull–White per currency on every snapshot and reports each parameter's path. */
+  'calibration.stability': {
+    args: { snapshots: MarketSnapshot[]; equities: string[]; currencies: string[] };
+    result: StabilityReport;
+  };
   /** Parses a study file's text: schema check (refused with the reason) and the hash check. */
   'study.open': { args: { text: string }; result: OpenedStudy };
   /** Runs a study (long: progress, cancellable). */

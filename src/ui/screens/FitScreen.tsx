@@ -3,9 +3,10 @@
  * the parameters, the residuals (and their Monte Carlo reprice on the study's own paths), and how stable
  * the parameters are across the snapshot dates.
  */
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
+import type { StabilityReport } from '../../engine/calibration/calibrationStability.ts';
 import type { LadderVariant, SavedStudy } from '../../engine/study/types.ts';
-import { useApp } from '../state/appContext.ts';
+import { errorText, useApp } from '../state/appContext.ts';
 import { LineChart } from '../components/charts.tsx';
 import { num, pct, secs } from '../components/format.ts';
 
@@ -90,6 +91,7 @@ export function FitScreen() {
         <section className="editor">
           <VariantFit v={v} />
           <Stability s={s} />
+          <SeriesStability />
         </section>
       </div>
     </div>
@@ -299,6 +301,99 @@ function Stability(props: { s: SavedStudy }) {
           })}
         />
       </div>
+    </section>
+  );
+}
+
+/** Parameter paths over the market dates on the Market screen (recalibrated here, independent of the study). */
+function SeriesStability() {
+  const { doc, engine } = useApp();
+  const markets = doc.markets;
+  const [report, setReport] = useState<StabilityReport | null>(null);
+  const [error, setError] = useState<string | null>(null);
+  const [busy, setBusy] = useState(false);
+  const equities = Array.from(
+    new Set(
+      Object.entries(doc.deal.underlyings ?? {}).flatMap(([id, u]) =>
+        u.kind === 'equity' ? [u.marketName ?? id] : [],
+      ),
+    ),
+  ).filter((n) => markets.every((m) => n in m.equities));
+  const currencies = Array.from(new Set([doc.deal.currency, ...(doc.deal.rates ?? [])])).filter((c) =>
+    markets.every((m) => m.rateVols && c in m.rateVols),
+  );
+  useEffect(() => {
+    setReport(null);
+    setError(null);
+  }, [markets]);
+  if (markets.length < 2) return null;
+  const run = (): void => {
+    setBusy(true);
+    setError(null);
+    engine
+      .call('calibration.stability', { snapshots: markets, equities, currencies })
+      .then(setReport, (e) => setError(errorText(e)))
+      .finally(() => setBusy(false));
+  };
+  return (
+    <section className="panel">
+      <h2>Parameter stability over the {markets.length} market dates</h2>
+      <p className="hint">
+        Heston per equity ({equities.join(', ') || 'none'}) and Hull–White per currency (
+        {currencies.join(', ') || 'none'}) calibrated on every date, each warm-started from the previous one.
+        Parameters that move while the fit stays good are poorly identified.
+      </p>
+      <div className="button-row">
+        <button
+          onClick={run}
+          disabled={busy || (equities.length === 0 && currencies.length === 0)}
+          data-testid="run-stability"
+        >
+          {busy ? 'Calibrating…' : report ? 'Calibrate again' : 'Calibrate every date'}
+        </button>
+      </div>
+      {error && (
+        <p className="msg-error" role="alert">
+          {error}
+        </p>
+      )}
+      {report && (
+        <div className="two-even" data-testid="stability-report">
+          <table className="data">
+            <thead>
+              <tr>
+                <th>Model</th>
+                <th>Parameter</th>
+                <th className="num">First</th>
+                <th className="num">Last</th>
+                <th className="num">Coefficient of variation</th>
+                <th className="num">Fit RMSE (last)</th>
+              </tr>
+            </thead>
+            <tbody>
+              {report.paths.map((p) => (
+                <tr key={`${p.model}.${p.parameter}`}>
+                  <td>{p.model}</td>
+                  <td>{p.parameter}</td>
+                  <td className="num">{num(p.values[0], 4)}</td>
+                  <td className="num">{num(p.values[p.values.length - 1], 4)}</td>
+                  <td className="num">{pct(p.coefficientOfVariation, 1)}</td>
+                  <td className="num">{num(p.fitRmse[p.fitRmse.length - 1], 3)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+          <LineChart
+            title="Each parameter relative to its first date"
+            xLabel="date (order)"
+            yLabel="value / first value"
+            series={report.paths.map((p) => ({
+              name: `${p.model} ${p.parameter}`,
+              points: p.values.map((v, i) => ({ x: i + 1, y: v / p.values[0]! })),
+            }))}
+          />
+        </div>
+      )}
     </section>
   );
 }

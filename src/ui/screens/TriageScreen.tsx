@@ -9,6 +9,7 @@ import { FACTOR_LABELS } from '../../engine/study/rules.ts';
 import type { SavedStudy, StudySettings } from '../../engine/study/types.ts';
 import type { Threshold } from '../../engine/study/decision.ts';
 import { useApp } from '../state/appContext.ts';
+import { DEFAULT_SETTINGS } from '../state/document.ts';
 import { IntervalChart, LineChart } from '../components/charts.tsx';
 import { CheckField, NumberField, SelectField, TextField } from '../components/fields.tsx';
 import { num, secs } from '../components/format.ts';
@@ -280,20 +281,7 @@ function RunPanel(props: { canRun: boolean }) {
           label="Test delta, vega and rho too"
           path="settings.greeks"
           value={g !== null}
-          onChange={(v) =>
-            set({
-              greeks: v
-                ? {
-                    spotBump: 0.01,
-                    rateBump: 1e-4,
-                    volBump: 0.01,
-                    deltaThreshold: 0.5,
-                    vegaThreshold: 0.5,
-                    rhoThreshold: 0.5,
-                  }
-                : null,
-            })
-          }
+          onChange={(v) => set({ greeks: v ? DEFAULT_SETTINGS.greeks : null })}
         />
         {g && (
           <>
