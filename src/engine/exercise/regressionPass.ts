@@ -11,14 +11,7 @@
  */
 import { fail } from '../errors.ts';
 import { polynomialBasis } from './basis.ts';
-import {
-  continuationValues,
-  decides,
-  designColumns,
-  isEligible,
-  standardState,
-  undeflatedExercise,
-} from './continuation.ts';
+import { decides, designColumns, isEligible, undeflatedExercise } from './continuation.ts';
 import { solveLeastSquares } from './leastSquares.ts';
 import type { BasisSpec, DatePolicy, ExercisePolicy, ExerciseRight, ExerciseSample } from './types.ts';
 
@@ -187,13 +180,22 @@ export function fitExercisePolicy(
         active = termsFor(basis, scale, deg);
       }
       const activeTerms = withEv(active);
-      const zAll = standardState(sample, j, mean, scale);
-      const colsAll = designColumns(basis, activeTerms, zAll, exercise, exerciseMean, exerciseScale);
-      const cols = colsAll.map((c) => {
-        const sub = new Float64Array(nObs);
-        for (let i = 0; i < nObs; i++) sub[i] = c[idx[i]!]!;
-        return sub;
-      });
+      // Design on the eligible paths only.
+      const zSub: Float64Array[] = [];
+      for (let v = 0; v < nState; v++) {
+        const zv = new Float64Array(nObs);
+        const sc = scale[v]!;
+        if (sc > 0) {
+          const m = mean[v]!;
+          const inv = 1 / sc;
+          const off = (j * nState + v) * P;
+          for (let i = 0; i < nObs; i++) zv[i] = (sample.state[off + idx[i]!]! - m) * inv;
+        }
+        zSub.push(zv);
+      }
+      const exSub = new Float64Array(nObs);
+      for (let i = 0; i < nObs; i++) exSub[i] = exercise[idx[i]!]!;
+      const cols = designColumns(basis, activeTerms, zSub, exSub, exerciseMean, exerciseScale);
       const target = new Float64Array(nObs);
       for (let i = 0; i < nObs; i++) {
         const p = idx[i]!;
@@ -213,10 +215,13 @@ export function fitExercisePolicy(
         ridge: ls.ridge,
         rmsResidual: ls.rmsResidual,
       };
-      const cont = continuationValues(basis, date, sample, j, exercise);
+      // Fitted continuation value on the eligible paths (same arithmetic, in the same order, as continuationValues).
+      const coef = date.coefficients;
       for (let i = 0; i < nObs; i++) {
+        let c = 0;
+        for (let t = 0; t < cols.length; t++) c += coef[t]! * cols[t]![i]!;
         const p = idx[i]!;
-        if (decides(holder, exercise[p]!, cont[p]!)) y[p] = sample.exerciseValue[j * P + p]!;
+        if (decides(holder, exercise[p]!, c)) y[p] = sample.exerciseValue[j * P + p]!;
       }
     }
     dates[j] = date;
