@@ -1,0 +1,120 @@
+/**
+ * Shared pieces of the cross-layer checks: the demo market as an input (never an oracle), direct path simulation of
+ * one variant with seeded normals, sample means with standard errors, and a judged comparison that prints inputs,
+ * expected, computed and tolerance.
+ */
+import { expect } from 'vitest';
+import { readFileSync } from 'node:fs';
+import type { MarketSnapshot } from '../../src/engine/market/types.ts';
+import type { PathBatch, VariantSpec } from '../../src/engine/simulation/types.ts';
+import { makeTimeGrid, type TimeGrid } from '../../src/engine/simulation/timeGrid.ts';
+import { makeDriverLayout } from '../../src/engine/simulation/drivers.ts';
+import {
+  modelBreakTimes,
+  normalsBlockSize,
+  prepareVariant,
+} from '../../src/engine/simulation/pathGenerator.ts';
+import { makeNormalSource, makeUniformStream } from '../../src/engine/random/index.ts';
+
+export const FULL = process.env.FT_PROFILE === 'full';
+
+const root = new URL('../../', import.meta.url);
+
+/** Reads a JSON file of the repository (relative to its root). */
+export function readJson<T>(path: string): T {
+  return JSON.parse(readFileSync(new URL(path, root), 'utf8')) as T;
+}
+
+/** The invented demo snapshot (an input of the checks; expected values always come from formulas). */
+export function demoMarket(): MarketSnapshot {
+  return readJson<MarketSnapshot>('samples/market/demo-market.json');
+}
+
+/** Running mean and standard error of a stream of per-path values. */
+export class MeanSe {
+  private n = 0;
+  private mean = 0;
+  private m2 = 0;
+  /** Welford's one-pass update (Welford 1962, Technometrics 4(3); common practice). */
+  add(x: number): void {
+    this.n++;
+    const d = x - this.mean;
+    this.mean += d / this.n;
+    this.m2 += d * (x - this.mean);
+  }
+  get count(): number {
+    return this.n;
+  }
+  get value(): number {
+    return this.mean;
+  }
+  get se(): number {
+    return this.n > 1 ? Math.sqrt(this.m2 / (this.n - 1) / this.n) : Infinity;
+  }
+}
+
+/**
+ * Simulates `nPaths` paths of one variant directly through the path generator, in chunks, with seeded normals
+ * (seedrandom xor4096 through the project's inverse-normal source), and hands each chunk to `visit`.
+ */
+export function simulateChunks(args: {
+  variant: VariantSpec;
+  eventTimes: number[];
+  maxStep: number;
+  nPaths: number;
+  seed: string;
+  chunk?: number;
+  visit: (batch: PathBatch, grid: TimeGrid) => void;
+}): TimeGrid {
+  const grid = makeTimeGrid(args.eventTimes, args.maxStep, modelBreakTimes([args.variant]));
+  const layout = makeDriverLayout([args.variant]);
+  const prepared = prepareVariant(args.variant, grid, layout);
+  const chunk = args.chunk ?? 8192;
+  let done = 0;
+  let c = 0;
+  while (done < args.nPaths) {
+    const n = Math.min(chunk, args.nPaths - done);
+    const normals = new Float64Array(normalsBlockSize(grid, layout, n));
+    makeNormalSource(makeUniformStream(`${args.seed}:${c}`)).fill(normals, 0, normals.length);
+    args.visit(prepared.simulate(normals, n), grid);
+    done += n;
+    c++;
+  }
+  return grid;
+}
+
+/**
+ * Asserts |computed − expected| ≤ 3 SE + allowance and SE ≤ cap; the message carries every number.
+ */
+export function expectWithinSe(args: {
+  label: string;
+  computed: number;
+  se: number;
+  expected: number;
+  seCap: number;
+  allowance?: number;
+  inputs?: unknown;
+}): void {
+  const allow = args.allowance ?? 0;
+  const msg =
+    `${args.label}: expected ${args.expected}, computed ${args.computed} ± ${args.se} ` +
+    `(tolerance 3 SE + ${allow} = ${3 * args.se + allow}, SE cap ${args.seCap})` +
+    (args.inputs !== undefined ? `; inputs ${JSON.stringify(args.inputs)}` : '');
+  expect(Number.isFinite(args.computed), msg).toBe(true);
+  expect(Math.abs(args.computed - args.expected), msg).toBeLessThanOrEqual(3 * args.se + allow);
+  expect(args.se, msg).toBeLessThanOrEqual(args.seCap);
+}
+
+/** Asserts |computed − expected| ≤ tol with every number in the message (deterministic checks). */
+export function expectClose(
+  label: string,
+  computed: number,
+  expected: number,
+  tol: number,
+  inputs?: unknown,
+) {
+  const msg =
+    `${label}: expected ${expected}, computed ${computed}, |diff| ${Math.abs(computed - expected)}, tolerance ${tol}` +
+    (inputs !== undefined ? `; inputs ${JSON.stringify(inputs)}` : '');
+  expect(Math.abs(computed - expected), msg).toBeLessThanOrEqual(tol);
+}
