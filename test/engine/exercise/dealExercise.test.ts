@@ -381,6 +381,45 @@ describe('early exercise of deals written in the deal language', () => {
     expect(deterministic.policy.dates[0]!.scale[rateIndex]).toBe(0);
   });
 
+  it('an issuer call that costs nothing is used at the first date on every path', () => {
+    // common practice: calling at 0 cancels a bond worth more than 0, so the issuer calls at once.
+    const src = dealExerciseSource({
+      compiled: compileDeal(callableZero(0)),
+      variant: hwVariant(0.08, 0.01, 0.1),
+      maxStep: 0.25,
+    });
+    const r = priceExerciseRight(src, { seed: 'free-call', regressionPaths: 2000, pricingPaths: 2000 });
+    expect(r.estimate.exerciseProbability[0]!.probability).toBe(1);
+    expect(r.estimate.primal.value).toBe(0);
+  });
+
+  it('under Heston the variance joins the regression state of the callable note', () => {
+    // DESIGN: the basis uses the variance where volatility is stochastic (same basis functions otherwise).
+    const raw = JSON.parse(
+      readFileSync(
+        new URL('../../../samples/deals/callable-equity-linked-note.json', import.meta.url),
+        'utf8',
+      ),
+    ) as unknown;
+    const variant: VariantSpec = {
+      ...hwVariant(0.05, 0.01, 0.03),
+      equities: [
+        {
+          name: 'ALDR',
+          currency: 'DOM',
+          spot: 4200,
+          divYield: 0.02,
+          dynamics: { kind: 'heston', v0: 0.04, kappa: 1.5, theta: 0.04, sigma: 0.5, rho: -0.6 },
+        },
+      ],
+    };
+    const src = dealExerciseSource({ compiled: compileDeal(raw), variant, maxStep: 0.25 });
+    expect(src.right.stateNames).toEqual(['eq:ALDR', 'rate:DOM', 'var:ALDR']);
+    const r = priceExerciseRight(src, { seed: 'heston-note', regressionPaths: 1500, pricingPaths: 1500 });
+    expect(r.policy.basis.terms.length).toBe(10);
+    expect(r.policy.basis.terms.map((t) => t.label)).toContain('z(eq:ALDR)·z(var:ALDR)');
+  });
+
   it('rights held by both parties are refused with a message naming the field', () => {
     const both: DealInput = {
       ...callableZero(68),
