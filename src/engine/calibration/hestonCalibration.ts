@@ -105,7 +105,7 @@ function slices(quotes: VolQuote[]): { expiry: number; idx: number[] }[] {
 
 const prepared = new WeakMap<
   readonly VolQuote[],
-  Map<string, { expiry: number; idx: number[]; slice: PreparedCosSlice }[]>
+  Map<string, { expiry: number; idx: number[]; lo: number; width: number; slice: PreparedCosSlice }[]>
 >();
 
 /** Slices of the quotes with their COS coefficients, prepared once per quote set and number of terms. */
@@ -131,6 +131,8 @@ function preparedSlices(quotes: VolQuote[], terms: number) {
       return {
         expiry: T,
         idx: s.idx,
+        lo,
+        width: 2 * half,
         slice: prepareCosSlice({
           forward: q0.forward,
           df: q0.df,
