@@ -18,6 +18,7 @@
  * a lower bound L̂_0 − E[max_j D'_j] with D' computed on negated values.
  */
 import { continuationValues, decides, isEligible, undeflatedExercise } from './continuation.ts';
+import { fail } from '../errors.ts';
 import { applyExercisePolicy } from './pricingPass.ts';
 import type { ExerciseSource } from './source.ts';
 import type { ExercisePolicy, ExerciseSample } from './types.ts';
@@ -70,7 +71,13 @@ export function estimateDualGap(
   settings: DualSettings,
 ): DualGap {
   if (!source.continueFrom)
-    throw new Error('this path source cannot restart from a state, so the dual bound is unavailable');
+    fail(
+      'E_DUAL_UNAVAILABLE',
+      'exercise.dual',
+      'needs a path source that can restart paths from a state',
+      'no restart',
+      'omit the dual setting for this source',
+    );
   const outer = source.sample(settings.nOuter, settings.outerSeed);
   const { nPaths: P, nDates: n } = outer;
   const sign = policy.holder === 'holder' ? 1 : -1;
@@ -97,9 +104,9 @@ export function estimateDualGap(
     for (let j = 0; j < n; j++) {
       const k = j * P + p;
       // Sub-optimality checking (Broadie & Cao 2008, 'Improved lower and upper bound algorithms for pricing American
-      // options by simulation', Quantitative Finance 8(8); section from memory): a holder never gains by exercising out of the
-      // money, so such dates leave the maximum and need no inner paths; π telescopes over them. A dead deal
-      // (knocked out) has nothing left to continue or to exercise.
+      // options by simulation', Quantitative Finance 8(8); from memory): a holder never gains by exercising out of
+      // the money, so such dates leave the maximum and need no inner paths (π telescopes over them, since there the
+      // policy continues and L_i = C_i exactly). A dead deal (knocked out) has nothing left to continue or exercise.
       if (outer.alive && outer.alive[k] === 0) continue;
       if (policy.holder === 'holder' && policy.inTheMoneyOnly && !(outer.exerciseValue[k]! > 0)) continue;
       innerCalls++;
