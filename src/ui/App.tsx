@@ -17,6 +17,7 @@ import {
 } from './state/document.ts';
 import { DEAL_TEMPLATES, DEMO_MARKET, DEMO_SERIES, loadDemoStudyText } from './state/samples.ts';
 import { RawContext } from './components/fields.tsx';
+import { ScreenBoundary } from './components/ScreenBoundary.tsx';
 import { DealScreen } from './screens/DealScreen.tsx';
 import { MarketScreen } from './screens/MarketScreen.tsx';
 import { FitScreen } from './screens/FitScreen.tsx';
@@ -390,19 +391,21 @@ export function App(props: { engine: EngineClient }) {
             </div>
           </nav>
           <main className="work" id="work">
-            {booting ? (
-              <p className="empty">Opening the demo study…</p>
-            ) : screen === 'deal' ? (
-              <DealScreen />
-            ) : screen === 'market' ? (
-              <MarketScreen />
-            ) : screen === 'fit' ? (
-              <FitScreen />
-            ) : screen === 'triage' ? (
-              <TriageScreen goTo={setScreen} />
-            ) : (
-              <ReviewScreen />
-            )}
+            <ScreenBoundary key={screen} name={SCREENS.find((x) => x.id === screen)!.label}>
+              {booting ? (
+                <p className="empty">Opening the demo study…</p>
+              ) : screen === 'deal' ? (
+                <DealScreen />
+              ) : screen === 'market' ? (
+                <MarketScreen />
+              ) : screen === 'fit' ? (
+                <FitScreen />
+              ) : screen === 'triage' ? (
+                <TriageScreen goTo={setScreen} />
+              ) : (
+                <ReviewScreen />
+              )}
+            </ScreenBoundary>
           </main>
           <footer className="caution" role="note" data-testid="caution">
             {APP_CAUTION}

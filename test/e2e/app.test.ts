@@ -9,9 +9,9 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { AppPage, CHROMIUM_ARGS, CHROMIUM_PATH } from './appPage.ts';
-import { parseStudyFile, runStudy, verifyStudy, DEFAULT_SETTINGS } from '../../src/engine/study/index.ts';
+import { spawnSync } from 'node:child_process';
+import { parseStudyFile } from '../../src/engine/study/index.ts';
 import type { DealInput } from '../../src/engine/deal/types.ts';
-import type { MarketSnapshot } from '../../src/engine/market/types.ts';
 
 const root = path.resolve(__dirname, '../..');
 const shots = path.join(root, 'docs', 'screens');
@@ -21,6 +21,28 @@ let browser: Browser;
 let url = '';
 
 const readJson = <T>(p: string): T => JSON.parse(fs.readFileSync(path.join(root, p), 'utf8')) as T;
+
+/** Runs the command line (`factor-triage ARGS`) in Node; returns its exit code and output. */
+function cli(...args: string[]): { status: number | null; out: string } {
+  const r = spawnSync(process.execPath, [path.join(root, 'bin', 'factor-triage.mjs'), ...args], {
+    cwd: root,
+    encoding: 'utf8',
+    timeout: 120_000,
+  });
+  return { status: r.status, out: `${r.stdout}\n${r.stderr}` };
+}
+
+const SMALL = [
+  '--paths',
+  '2048',
+  '--first-paths',
+  '512',
+  '--batch',
+  '512',
+  '--no-greeks',
+  '--no-sweeps',
+  '--no-local-vol',
+];
 
 beforeAll(async () => {
   if (!fs.existsSync(CHROMIUM_PATH))
@@ -170,9 +192,9 @@ describe('browser build', () => {
       await app.page.click('[data-testid=verify]');
       await app.page.waitForSelector('[data-testid=verify-result]', { timeout: 120_000 });
       expect(await app.page.textContent('[data-testid=verify-result]')).toMatch(/Reproduced bit for bit/);
-      // …and from the command line's engine in Node.
-      const v = await verifyStudy(study);
-      expect(v.ok, `browser-made study re-run in Node: ${v.message}`).toBe(true);
+      // …and from the command line in Node.
+      const v = cli('verify', saved);
+      expect(v.status, `factor-triage verify of the browser-made study:\n${v.out}`).toBe(0);
     } finally {
       await app.close();
     }
@@ -196,28 +218,35 @@ describe('browser build', () => {
     }
   });
 
-  it('a study made in Node verifies bit for bit in the browser, and two studies can be compared', async () => {
-    const deal = readJson<DealInput>('samples/deals/autocallable-memory.json');
-    const market = readJson<MarketSnapshot>('samples/market/demo-market.json');
-    const base = {
-      ...DEFAULT_SETTINGS,
-      paths: 2048,
-      firstPaths: 512,
-      batchSize: 512,
-      greeks: null,
-      sweeps: null,
-      localVol: false,
-    };
-    const a = await runStudy({ deal, markets: [market], settings: base });
-    const b = await runStudy({
-      deal,
-      markets: [market],
-      settings: { ...base, threshold: { kind: 'bp' as const, value: 40 } },
-    });
+  it('a study made by the command line verifies bit for bit in the browser, and two studies can be compared', async () => {
     const fileA = path.join(work, 'node-made.study.json');
     const fileB = path.join(work, 'node-made-wider.study.json');
-    fs.writeFileSync(fileA, JSON.stringify(a));
-    fs.writeFileSync(fileB, JSON.stringify(b));
+    const deal = 'samples/deals/autocallable-memory.json';
+    const market = 'samples/market/demo-market.json';
+    const ra = cli(
+      'study',
+      deal,
+      market,
+      ...SMALL,
+      '--out',
+      fileA,
+      '--report',
+      path.join(work, 'a.report.html'),
+    );
+    expect(ra.status, ra.out).toBe(0);
+    const rb = cli(
+      'study',
+      deal,
+      market,
+      ...SMALL,
+      '--bp',
+      '40',
+      '--out',
+      fileB,
+      '--report',
+      path.join(work, 'b.report.html'),
+    );
+    expect(rb.status, rb.out).toBe(0);
     const app = await AppPage.open(browser, url);
     try {
       await app.page.waitForSelector('[data-screen=review]');
