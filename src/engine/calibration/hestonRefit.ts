@@ -3,7 +3,7 @@
  * the vanillas, so its analytic prices match the market. Step 2 (optional) checks the refit by Monte Carlo of the
  * full Heston–Hull–White model on a random stream of its own (fixed seed, never a study's pricing paths); where the
  * full model misses a quote by more than the tolerance, the targets are shifted by the Monte Carlo − approximation
- * gap measured at the current parameters and the H1-HW fit is repeated (a fixed-point correction, common practice
+ * gap measured at the current parameters (where the Monte Carlo resolves it: |gap| > 2 standard errors) and the H1-HW fit is repeated (a fixed-point correction, common practice
  * for calibrating through an approximation), up to `maxIterations`. The report says when it stopped without
  * meeting the tolerance.
  */
@@ -176,10 +176,10 @@ export function refitHestonUnderRates(input: HestonRefitInput): HestonRefit {
     }
     if (it === maxIt) break;
     // Full ≈ H1-HW + gap, so fitting H1-HW to market − gap (gap measured at the current parameters) aims the full model
-    // at the market.
+    // at the market. Only gaps the Monte Carlo resolves (|gap| > 2 SE) move a target; the others are noise.
     quotes.forEach((_, i) => {
       const g = res.vols[i]! - fit.rows[i]!.modelVol;
-      if (Number.isFinite(g)) shift[i] = -g;
+      shift[i] = Number.isFinite(g) && Math.abs(g) > 2 * res.volSe[i]! ? -g : 0;
     });
     fit = calibrateHeston({
       name: input.name,
