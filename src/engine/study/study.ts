@@ -75,8 +75,13 @@ export interface RunStudyOptions {
 
 const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
 
-/** Largest step of the local-vol diagnostic's grid (years): one week, since log-Euler reads σ at each step's start. */
-export const LV_STEP = 1 / 52;
+/**
+ * Largest step of the local-vol diagnostic's grid (years): a week, or 1/200 of the deal's life when that is longer
+ * (log-Euler reads σ at each step's start, so the smile needs many steps; 200 keeps long deals affordable).
+ */
+export function lvStep(lastTime: number): number {
+  return Math.max(1 / 52, lastTime / 200);
+}
 
 function fmtStep(t: number): string {
   return `${Math.round(t * 365 * 10) / 10} days`;
@@ -263,14 +268,26 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
   const warnings: string[] = [...P.marketWarnings];
   const limitations: string[] = [];
   const workers = Math.max(1, Math.floor(opts.workers ?? 1));
-  const progress = (fraction: number, stage: string, detail?: string) =>
+  const stages: Record<string, number> = {};
+  let stageName = 'setup';
+  let stageT = tStart;
+  const progress = (fraction: number, stage: string, detail?: string) => {
+    if (stage !== stageName) {
+      const t = now();
+      stages[stageName] = (stages[stageName] ?? 0) + (t - stageT) / 1000;
+      stageName = stage;
+      stageT = t;
+    }
     opts.onProgress?.({ fraction: Math.min(1, Math.max(0, fraction)), stage, ...(detail ? { detail } : {}) });
+  };
   const checkAbort = () => {
     if (opts.signal?.aborted) throw new EngineError('E_CANCELLED', 'the study was cancelled');
   };
   const k = candidates.length;
   const full = (1 << k) - 1;
   const aux = Math.max(S.batchSize, Math.round((S.paths * S.auxiliaryFraction) / S.batchSize) * S.batchSize);
+  // The step-halving check runs in process on half the auxiliary paths (its pairing makes it precise).
+  const stepPaths = Math.max(S.batchSize, Math.round(aux / 2 / S.batchSize) * S.batchSize);
 
   // --- calibration
   progress(0.01, 'calibration', 'fitting every variant to the same instruments');
@@ -352,14 +369,14 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
   let simSeconds = 0;
   try {
     // --- step halving (in process, same random numbers on both grids)
-    progress(0.05, 'step halving', `${aux} paths on the study grid and on the halved grid`);
+    progress(0.05, 'step halving', `${stepPaths} paths on the study grid and on the halved grid`);
     const sh = await runStepHalving({
       variants,
       deal: compiled,
       eventTimes,
       maxStep,
       seed: S.seed,
-      paths: aux,
+      paths: stepPaths,
       batchSize: S.batchSize,
       signal: opts.signal,
       onBatch: (d, t) => progress(0.05 + 0.1 * (d / t), 'step halving'),
@@ -410,14 +427,22 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
     const col = (mask: number, sc = 0) => mask * nSc + sc;
     const payoff = { factory: studyDealFactoryUrl(), description: { deals: [compiled] } };
 
-    // --- vega run (recalibrated variants, same grid and seed → same paths)
+    // --- vega run (recalibrated variants, same grid and seed → same paths); only the richest variant and the
+    // leave-one-out variants, which the vega tests and the calibration budget need
+    const vegaMasks = [...new Set([full, ...candidates.map((_, fi) => full ^ (1 << fi))])];
     let vegaStats: ColumnStats | null = null;
     if (vegaLadders) {
       progress(0.16, 'vega', 'recalibrated variants ±vol bump on the same paths');
       const spec: RunSpec = {
         variants: [
-          ...vegaLadders.up.variants.map((v) => ({ ...v.spec, id: `${v.spec.id}/vol+` })),
-          ...vegaLadders.down.variants.map((v) => ({ ...v.spec, id: `${v.spec.id}/vol-` })),
+          ...vegaMasks.map((m) => ({
+            ...vegaLadders!.up.variants[m]!.spec,
+            id: `${vegaLadders!.up.variants[m]!.spec.id}/vol+`,
+          })),
+          ...vegaMasks.map((m) => ({
+            ...vegaLadders!.down.variants[m]!.spec,
+            id: `${vegaLadders!.down.variants[m]!.spec.id}/vol-`,
+          })),
         ],
         payoff,
         grid: { eventTimes, maxStep },
@@ -482,8 +507,12 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         });
       },
     };
-    const vegaOf = (m: number): Record<number, number> | null =>
-      vegaStats && h ? { [m]: 0.01 / (2 * h.volBump), [m + variants.length]: -0.01 / (2 * h.volBump) } : null;
+    const vegaOf = (m: number): Record<number, number> | null => {
+      const i = vegaMasks.indexOf(m);
+      return vegaStats && h && i >= 0
+        ? { [i]: 0.01 / (2 * h.volBump), [i + vegaMasks.length]: -0.01 / (2 * h.volBump) }
+        : null;
+    };
     const calBudget = (a: number, b: number): number => {
       const vw = vegaOf(full);
       if (!vw || !vegaStats) return 0;
@@ -675,10 +704,10 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       progress(
         0.74,
         'local vol',
-        `Black–Scholes, Heston and Dupire local vol on steps of ${fmtStep(LV_STEP)}`,
+        `Black–Scholes, Heston and Dupire local vol on steps of ${fmtStep(lvStep(analysis.lastTime))}`,
       );
       const lvVariants = [variants[0]!, variants[1 << svBit]!, lvVariant.spec];
-      const grid = { eventTimes, maxStep: Math.min(maxStep, LV_STEP) };
+      const grid = { eventTimes, maxStep: Math.min(maxStep, lvStep(analysis.lastTime)) };
       const r = await runInLooks({
         spec: { variants: lvVariants, payoff, grid, seed: S.seed, batchSize: S.batchSize, maxPaths: aux },
         executor,
@@ -770,6 +799,8 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         });
       });
       let done = 0;
+      const sweepMasks = [...new Set([full, ...candidates.map((_, fi) => full ^ (1 << fi))])];
+      const at = (mk: number) => sweepMasks.indexOf(mk);
       for (const sw of sweeps) {
         const [a, b] = sw.pair.split('|') as [string, string];
         const n = S.sweeps.points;
@@ -787,7 +818,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
             continue;
           }
           const spec: RunSpec = {
-            variants: l.variants.map((v) => v.spec),
+            variants: sweepMasks.map((mk) => l.variants[mk]!.spec),
             payoff,
             grid: { eventTimes, maxStep },
             seed: S.seed,
@@ -799,9 +830,9 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           const st = toStats(r.looks[0]!);
           const deltas: Record<string, ValueSe> = {};
           candidates.forEach((f, fi) => {
-            deltas[f] = combination(st, { [full]: 1, [looFor(fi)]: -1 });
+            deltas[f] = combination(st, { [at(full)]: 1, [at(looFor(fi))]: -1 });
           });
-          sw.points.push({ rho, price: combination(st, { [full]: 1 }), deltas });
+          sw.points.push({ rho, price: combination(st, { [at(full)]: 1 }), deltas });
           done++;
           progress(
             0.75 + (0.15 * done) / Math.max(1, sweeps.length * n),
@@ -910,7 +941,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           );
     if (lvVariant)
       limitations.push(
-        "The local-volatility diagnostic uses Dupire's formula on an SVI fit of the grid, simulated by log-Euler on a weekly grid beside Black–Scholes and Heston on the same normals (no step-halving check); its vanilla repricing on the study paths is shown with the other variants.",
+        "The local-volatility diagnostic uses Dupire's formula on an SVI fit of the grid, simulated by log-Euler on a fine grid (a week, or 1/200 of the deal's life) beside Black–Scholes and Heston on the same normals (no step-halving check); its vanilla repricing on the study paths is shown with the other variants.",
       );
     const assumed = Object.entries(snap.correlationRanges ?? {}).map(([p, r]) => {
       const [a, b] = p.split('|') as [string, string];
@@ -984,6 +1015,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         simulation: simSeconds * (1 - payShare),
         payoff: simSeconds * payShare,
         perVariant,
+        stages,
         workers,
       },
     });

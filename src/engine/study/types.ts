@@ -202,6 +202,8 @@ export interface StudyTimings {
   simulation: number;
   payoff: number;
   perVariant: Record<string, number>;
+  /** Wall time per stage of the study (calibration, step halving, vega, pricing, fairness, local vol, sweeps, ...). */
+  stages?: Record<string, number>;
   workers: number;
 }
 
