@@ -49,7 +49,7 @@ function paramsOf(v: LadderVariant): { name: string; value: number }[] {
 export function FitScreen() {
   const { doc } = useApp();
   const s = doc.study;
-  const [sel, setSel] = useState(0);
+  const [picked, setSel] = useState<number | null>(null);
   if (!s)
     return (
       <div className="screen">
@@ -59,7 +59,13 @@ export function FitScreen() {
         </div>
       </div>
     );
-  const v = s.ladder[Math.min(sel, s.ladder.length - 1)]!;
+  // Start on the richest variant of the ladder (most factors): its fit is the one the verdicts lean on.
+  const richest = s.ladder.reduce(
+    (best, x, i) => (x.role === 'ladder' && x.factors.length > s.ladder[best]!.factors.length ? i : best),
+    0,
+  );
+  const sel = picked !== null && picked < s.ladder.length ? picked : richest;
+  const v = s.ladder[sel]!;
   return (
     <div className="screen fit">
       <div className="two-col">
