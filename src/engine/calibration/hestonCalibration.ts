@@ -11,7 +11,7 @@ import { EngineError, issue, throwIfErrors, type FieldIssue } from '../errors.ts
 import { prepareCosSlice, type LogCharFn, type PreparedCosSlice } from './cosPricer.ts';
 import { hestonLogChf } from './hestonCharFn.ts';
 import { h1hwLogChf, sqrtVarianceTable, type H1HwRates } from './h1hwCharFn.ts';
-import { blackImpliedVol } from './blackFormulas.ts';
+import { blackImpliedVol, blackPrice } from './blackFormulas.ts';
 import { fitLeastSquares, type FitParameter, type FitReport } from './levenbergMarquardt.ts';
 import { gridArbitrageIssues, gridQuotes, type VolQuote } from './volGrid.ts';
 
@@ -357,16 +357,10 @@ function toHeston(r: Record<string, number>): HestonParams {
   return { v0: r.v0!, kappa: r.kappa!, theta: r.theta!, sigma: r.sigma!, rho: r.rho! };
 }
 
+/** Discounted Black price of the quote's contract at another vol (the shifted target of the refit). */
 function blackPriceOf(q: VolQuote, vol: number): number {
-  // Same contract as the quote, at another vol.
-  const sd = vol * Math.sqrt(q.expiry);
-  if (!(sd > 0))
-    throw new EngineError('E_SHIFTED_VOL', `shifted target vol for ${q.field} is not > 0 (${vol})`);
-  return blackFromQuote(q, vol);
-}
-
-import { blackPrice } from './blackFormulas.ts';
-function blackFromQuote(q: VolQuote, vol: number): number {
+  if (!(vol > 0))
+    throw new EngineError('E_SHIFTED_VOL', `shifted target vol for ${q.field} must be > 0 (got ${vol})`);
   return blackPrice({
     forward: q.forward,
     strike: q.strike,
