@@ -59,7 +59,7 @@ export interface HestonCalibrationInput {
   fixed?: Partial<HestonParams>;
   /** Under Hull–White rates: the H1-HW characteristic function is used. */
   rates?: H1HwRates;
-  /** Cosine terms per expiry (default 256). */
+  /** Cosine terms per expiry (default 192). */
   terms?: number;
   maxEvaluations?: number;
   /** Fit tolerance on the RMSE of the implied-vol errors, vol points (default 0.5). */
@@ -124,8 +124,8 @@ function preparedSlices(quotes: VolQuote[], terms: number) {
       const T = s.expiry;
       const vMax = Math.max(...qs.map((q) => q.vol));
       const vMean = qs.reduce((acc, q) => acc + q.vol, 0) / qs.length;
-      // Range from the market vols: centre −½σ̄²T, half-width 12·σ_max√T (at least 0.8 in log-price); with 256
-      // terms this prices the demo-like smiles to ~1e-5 vol points (measured against 4096 terms).
+      // Range from the market vols: centre −½σ̄²T, half-width 12·σ_max√T (at least 0.8 in log-price); with 192
+      // terms this prices the demo-like smiles to ~5e-5 vol points (measured against 4096 terms).
       const half = Math.max(12 * vMax * Math.sqrt(T), 0.8);
       const lo = -0.5 * vMean * vMean * T - half;
       return {
@@ -156,7 +156,7 @@ export function hestonModelPrices(
 ): number[] {
   const out = new Array<number>(quotes.length).fill(NaN);
   const sqrtV = options.rates ? sqrtVarianceTable(p, Math.max(...quotes.map((q) => q.expiry))) : undefined;
-  for (const s of preparedSlices(quotes, options.terms ?? 256)) {
+  for (const s of preparedSlices(quotes, options.terms ?? 192)) {
     const logChf: LogCharFn = options.rates
       ? h1hwLogChf(p, s.expiry, { ...options.rates, sqrtV })
       : hestonLogChf(p, s.expiry);
