@@ -118,3 +118,66 @@ export function expectClose(
     (inputs !== undefined ? `; inputs ${JSON.stringify(inputs)}` : '');
   expect(Math.abs(computed - expected), msg).toBeLessThanOrEqual(tol);
 }
+
+/**
+ * Control-variate estimate of E[y] with controls of known means, β by least squares on the same paths
+ * (Glasserman 2003, "Monte Carlo Methods in Financial Engineering", Sec. 4.1.2, multiple controls). The SE is the
+ * residual standard deviation over √n (the β-estimation effect is O(1/n); common practice).
+ */
+export function controlVariateEstimate(
+  y: ArrayLike<number>,
+  controls: ArrayLike<number>[],
+  known: number[],
+): { value: number; se: number; plainValue: number; plainSe: number } {
+  const n = y.length;
+  const m = controls.length;
+  const mean = (a: ArrayLike<number>) => {
+    let s = 0;
+    for (let i = 0; i < n; i++) s += a[i]!;
+    return s / n;
+  };
+  const my = mean(y);
+  const mc = controls.map(mean);
+  // Normal equations S β = c with S = Cov(controls), c = Cov(controls, y).
+  const S = Array.from({ length: m }, () => new Array<number>(m).fill(0));
+  const c = new Array<number>(m).fill(0);
+  let syy = 0;
+  for (let i = 0; i < n; i++) {
+    const dy = y[i]! - my;
+    syy += dy * dy;
+    for (let a = 0; a < m; a++) {
+      const da = controls[a]![i]! - mc[a]!;
+      c[a] += da * dy;
+      for (let b = 0; b <= a; b++) S[a]![b] += da * (controls[b]![i]! - mc[b]!);
+    }
+  }
+  for (let a = 0; a < m; a++) for (let b = 0; b < a; b++) S[b]![a] = S[a]![b]!;
+  // Gaussian elimination (m is 1 or 2 here).
+  const A = S.map((row, i) => [...row, c[i]!]);
+  for (let p = 0; p < m; p++) {
+    for (let r = p + 1; r < m; r++) {
+      const f = A[r]![p]! / A[p]![p]!;
+      for (let q = p; q <= m; q++) A[r]![q] -= f * A[p]![q]!;
+    }
+  }
+  const beta = new Array<number>(m).fill(0);
+  for (let p = m - 1; p >= 0; p--) {
+    let s = A[p]![m]!;
+    for (let q = p + 1; q < m; q++) s -= A[p]![q]! * beta[q]!;
+    beta[p] = s / A[p]![p]!;
+  }
+  let value = my;
+  for (let a = 0; a < m; a++) value -= beta[a]! * (mc[a]! - known[a]!);
+  let sr = 0;
+  for (let i = 0; i < n; i++) {
+    let e = y[i]! - my;
+    for (let a = 0; a < m; a++) e -= beta[a]! * (controls[a]![i]! - mc[a]!);
+    sr += e * e;
+  }
+  return {
+    value,
+    se: Math.sqrt(sr / (n - m - 1) / n),
+    plainValue: my,
+    plainSe: Math.sqrt(syy / (n - 1) / n),
+  };
+}
