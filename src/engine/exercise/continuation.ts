@@ -6,32 +6,6 @@
 import { evalTerm } from './basis.ts';
 import type { BasisSpec, DatePolicy, ExerciseHolder, ExerciseSample } from './types.ts';
 
-/**
- * Standardised state of date `j` of a sample: `z[v][p] = (x − mean_v) / scale_v`; a variable with scale 0 gets an
- * all-zero array (its terms are not active).
- */
-export function standardState(
-  sample: ExerciseSample,
-  j: number,
-  mean: number[],
-  scale: number[],
-): Float64Array[] {
-  const { nPaths, nState, state } = sample;
-  const z: Float64Array[] = [];
-  for (let v = 0; v < nState; v++) {
-    const zv = new Float64Array(nPaths);
-    const s = scale[v]!;
-    if (s > 0) {
-      const m = mean[v]!;
-      const inv = 1 / s;
-      const off = (j * nState + v) * nPaths;
-      for (let p = 0; p < nPaths; p++) zv[p] = (state[off + p]! - m) * inv;
-    }
-    z.push(zv);
-  }
-  return z;
-}
-
 /** Exercise value at date j in time-t_j money (deflated value divided by the deflator), over all paths. */
 export function undeflatedExercise(sample: ExerciseSample, j: number): Float64Array {
   const { nPaths } = sample;
