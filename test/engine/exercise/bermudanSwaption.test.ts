@@ -85,6 +85,20 @@ describe('Bermudan swaption under Hull–White by Longstaff–Schwartz', () => {
     expect(Math.abs(total - 1)).toBeLessThan(1e-12);
   });
 
+  it('with one exercise date the policy is optimal and the dual gap is exactly zero', () => {
+    // Andersen & Broadie (2004): the gap vanishes for the optimal policy; with one date, exercising whenever the
+    // swap is worth more than nothing is optimal, and nothing is paid afterwards (inner values are exactly 0).
+    const src = hullWhiteBermudanSwaptionSource({ curve, ...CASE, type: 'payer', exerciseTimes: [1] });
+    const r = priceExerciseRight(src, {
+      seed: 41,
+      regressionPaths: 2000,
+      pricingPaths: 2000,
+      dual: { outerPaths: 50, innerPaths: 20 },
+    });
+    expect(r.estimate.dual!.gap).toBe(0);
+    expect(r.estimate.dual!.value).toBe(r.estimate.primal.value);
+  });
+
   it('a swaption struck so high it is never in the money is never exercised', () => {
     // common practice: a payer at a 50 % fixed rate has swap value 1 − P(t,T_m) − 0.5 Σ τ_i P(t,T_i) < 0 on every
     // path when rates are near 4 %, so the exercise value is zero everywhere.
