@@ -19,9 +19,11 @@ export function fmt(x: number | null | undefined, sig = 5): string {
   if (a >= 1e9 || a < 1e-5) return x.toExponential(Math.max(0, sig - 1));
   const digits = Math.max(0, sig - 1 - Math.floor(Math.log10(a)));
   const s = x.toFixed(Math.min(12, digits));
-  const [i, f] = s.split('.');
+  const [i, f0] = s.split('.');
   const grouped = i!.replace(/\B(?=(\d{3})+(?!\d))/g, ',');
-  return f !== undefined ? `${grouped}.${f}` : grouped;
+  // Trailing zeros carry no information once the significant digits are fixed.
+  const f = f0?.replace(/0+$/, '');
+  return f ? `${grouped}.${f}` : grouped;
 }
 
 /** Percentage with a given number of decimals. */
