@@ -176,6 +176,23 @@ function render(
     io.out(
       `  RMSE ${f(rep.rmseVolPoints, 3)} vol points, max ${f(rep.maxAbsVolPoints, 3)}; Feller ratio 2κθ/σ² = ${f(rep.feller.ratio, 3)} (${rep.feller.satisfied ? 'met' : 'not met: variance can reach 0'}); stop: ${rep.fit.stopReason}; condition ${f(rep.fit.conditionNumber, 1)}; ${rep.starts.length} starts; ${f(rep.seconds * 1e3, 0)} ms${rep.ok ? '' : '  ** FIT NOT ACCEPTED **'}`,
     );
+    const worst = rep.rows
+      .slice()
+      .sort((x, y) => Math.abs(y.volErrorPoints) - Math.abs(x.volErrorPoints))
+      .slice(0, 5);
+    io.out('  largest errors:');
+    for (const l of table(
+      ['expiry', 'strike', 'market vol', 'model vol', 'error (vol pts)', 'price error'],
+      worst.map((r) => [
+        f(r.expiry, 2),
+        f(r.strike, 2),
+        f(r.marketVol, 4),
+        f(r.modelVol, 4),
+        f(r.volErrorPoints, 3),
+        f(r.priceError, 4),
+      ]),
+    ))
+      io.out('    ' + l);
     io.out('');
   }
   io.out('Ladder: every variant fitted to the same instruments');
