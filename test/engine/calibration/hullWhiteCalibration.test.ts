@@ -16,7 +16,7 @@ const curve = makeCurve(curveSpec);
 const EXP = [1, 2, 3, 4, 5, 7, 10, 12, 15, 20];
 
 describe('Hull–White calibration', () => {
-  it('prices the QuantLib-recomputed caplet of published.md §3 through its quote path', () => {
+  it('prices the recomputed caplet case of published.md §3 through its quote path', () => {
     // Worked case constructed in /work/shared/reference/published.md §3 (QuantLib 1.29, AnalyticCapFloorEngine):
     // a=0.1, σ=0.01, flat 5% continuous, caplet on [1y, 2y], accrual 1, K=5%, notional 100 → 0.404159032308.
     const c5 = makeCurve(flatCurveSpec('X', 0.05));
