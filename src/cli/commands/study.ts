@@ -15,7 +15,7 @@ import {
   type FactorId,
 } from '../../engine/study/index.ts';
 import { makeNodeWorkerExecutor } from '../../engine/simulation/runner.node.ts';
-import { inProcessExecutor } from '../../engine/simulation/runSimulation.ts';
+import { studyInProcessExecutor } from '../../engine/study/studyExecutor.ts';
 import { renderReport, CAUTION } from '../../report/index.ts';
 import { readFileSync, renameSync, writeFileSync, unlinkSync, existsSync, statSync } from 'node:fs';
 
@@ -311,7 +311,7 @@ export async function run(args: string[], io: CliIo): Promise<number> {
     { deal: deal as never, markets: markets as never, settings: p.settings },
     {
       workers: p.workers,
-      makeExecutor: (w) => (w > 1 ? makeNodeWorkerExecutor(w) : inProcessExecutor()),
+      makeExecutor: (w) => (w > 1 ? makeNodeWorkerExecutor(w) : studyInProcessExecutor()),
       onProgress: (pr) => io.progress(pr.fraction, `study: ${pr.stage}`),
     },
   );

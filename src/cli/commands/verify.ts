@@ -7,7 +7,7 @@ import { EXIT } from '../main.ts';
 import { EngineError } from '../../engine/errors.ts';
 import { parseStudyFile, verifyStudy } from '../../engine/study/index.ts';
 import { makeNodeWorkerExecutor } from '../../engine/simulation/runner.node.ts';
-import { inProcessExecutor } from '../../engine/simulation/runSimulation.ts';
+import { studyInProcessExecutor } from '../../engine/study/studyExecutor.ts';
 import { CAUTION } from '../../report/index.ts';
 import { readJsonFile } from './study.ts';
 
@@ -44,7 +44,7 @@ export async function run(args: string[], io: CliIo): Promise<number> {
   const saved = parseStudyFile(readJsonFile(files[0]!, 'study file'));
   const r = await verifyStudy(saved, {
     workers,
-    makeExecutor: (w) => (w > 1 ? makeNodeWorkerExecutor(w) : inProcessExecutor()),
+    makeExecutor: (w) => (w > 1 ? makeNodeWorkerExecutor(w) : studyInProcessExecutor()),
     onProgress: (p) => io.progress(p.fraction, `verify: ${p.stage}`),
   });
   if (json) io.out(JSON.stringify(r));

@@ -61,3 +61,4 @@ export {
   type LadderRequest,
   type CalibratedLadder,
 } from './ladderCalibration.ts';
+export { studyInProcessExecutor } from './studyExecutor.ts';

@@ -18,7 +18,8 @@ import { bsImpliedVol } from '../models/blackScholes.ts';
 import { gridVolAt } from '../calibration/volGrid.ts';
 import { calibrateLocalVol } from '../calibration/localVolCalibration.ts';
 import { equityForward } from '../calibration/volGrid.ts';
-import { inProcessExecutor, type BatchExecutor } from '../simulation/runSimulation.ts';
+import type { BatchExecutor } from '../simulation/runSimulation.ts';
+import { studyInProcessExecutor } from './studyExecutor.ts';
 import type { RunSpec } from '../simulation/runSpec.ts';
 import { columnStats, type MomentSums } from '../simulation/momentSums.ts';
 import type { PathShift, VariantSpec } from '../simulation/types.ts';
@@ -364,7 +365,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
   if (eventTimes.length === 0)
     fail('E_NO_DATES', 'deal.schedules', 'must give at least one date after the valuation date', undefined);
   const maxStep = Math.min(S.maxStep, Math.max(...eventTimes));
-  const makeExec = opts.makeExecutor ?? (() => inProcessExecutor());
+  const makeExec = opts.makeExecutor ?? (() => studyInProcessExecutor());
   const executor = makeExec(workers);
   let simSeconds = 0;
   try {

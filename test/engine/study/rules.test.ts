@@ -1,4 +1,7 @@
 import { describe, it, expect } from 'vitest';
+import { readFileSync } from 'node:fs';
+import { compileDeal } from '../../../src/engine/deal/compileDeal.ts';
+import { analyseDeal } from '../../../src/engine/deal/analyseDeal.ts';
 import { applyRules, candidateFactors, requiredFactors } from '../../../src/engine/study/rules.ts';
 import type { DealAnalysis, Finding } from '../../../src/engine/deal/types.ts';
 
@@ -105,5 +108,34 @@ describe('rules', () => {
   });
   it('gives every factor a reason', () => {
     for (const f of applyRules(analysis({ lastTime: 7 })).factors) expect(f.reason.length).toBeGreaterThan(5);
+  });
+});
+
+describe('rules on the sample deals (analysed by the deal layer)', () => {
+  const read = (f: string) =>
+    JSON.parse(readFileSync(new URL(`../../../samples/deals/${f}`, import.meta.url), 'utf8')) as unknown;
+  const rulesOf = (f: string) => applyRules(analyseDeal(compileDeal(read(f))));
+  const status = (f: string) => Object.fromEntries(rulesOf(f).factors.map((x) => [x.factor, x.status]));
+  // Breeden & Litzenberger (1978): one-date payoff on one equity is spanned by its vanillas.
+  it('the European call needs neither factor', () => {
+    expect(status('european-call.json')).toEqual({
+      stochVol: 'notNeeded',
+      domesticRate: 'notNeeded',
+      foreignRate: 'notNeeded',
+    });
+  });
+  // DESIGN step 3: long maturity makes rates a candidate even for linear coupons; path dependence makes vol one.
+  it('the twelve-year note makes rates and stochastic vol candidates', () => {
+    expect(status('long-dated-floating-note.json')).toMatchObject({
+      stochVol: 'candidate',
+      domesticRate: 'candidate',
+    });
+  });
+  // DESIGN step 3: a quanto payoff carries the quanto drift in every variant.
+  it('the quanto worst-of notes the quanto drift', () => {
+    expect(rulesOf('worst-of-quanto.json').notes.join(' ')).toMatch(/quanto drift/);
+  });
+  it('the cliquet makes stochastic vol a candidate', () => {
+    expect(status('cliquet-capped-floored.json').stochVol).toBe('candidate');
   });
 });
