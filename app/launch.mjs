@@ -1,7 +1,7 @@
 #!/usr/bin/env node
 // Starts the desktop shell when the Electron binary is installed; otherwise says so in one line and
 // points to the browser build. It never downloads anything itself.
-import { spawn } from 'node:child_process';
+import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import path from 'node:path';
@@ -41,6 +41,24 @@ if (isMain) {
       'Factor Triage: the Electron binary is not available on this machine; run `npm run web` to use the browser build instead.',
     );
     process.exit(1);
+  }
+  // The shell serves the desktop build of the renderer; build it once if it is not there yet.
+  if (!existsSync(path.join(root, 'dist', 'desktop', 'index.html'))) {
+    const vite = path.join(root, 'node_modules', 'vite', 'bin', 'vite.js');
+    const b = spawnSync(
+      process.execPath,
+      [vite, 'build', '--config', 'vite.config.ts', '--mode', 'desktop'],
+      {
+        cwd: root,
+        stdio: 'inherit',
+      },
+    );
+    if (b.status !== 0) {
+      console.log(
+        'Factor Triage: the desktop renderer did not build; run `npx vite build --mode desktop` to see why.',
+      );
+      process.exit(1);
+    }
   }
   const child = spawn(bin, [root, ...process.argv.slice(2)], { stdio: 'inherit' });
   child.on('exit', (code) => process.exit(code ?? 0));
