@@ -9,12 +9,13 @@ import {
   lookSchedule,
   jointTest,
   type FactorEstimate,
+  type ErrorBudget,
 } from '../../src/engine/study/decision.ts';
 import { shapley, shapleyWeights } from '../../src/engine/study/shapley.ts';
 import type { ColumnStats } from '../../src/engine/study/stats.ts';
 import { expectClose } from './helpers.ts';
 
-const noBudget = { stepHalving: 0, calibration: 0, exerciseGap: null };
+const noBudget: ErrorBudget = { stepHalving: 0, calibration: 0, exerciseGap: null };
 const est = (factor: string, delta: number, se: number, budget = noBudget): FactorEstimate => ({
   factor,
   delta,
@@ -130,7 +131,8 @@ describe('keep / drop / undecided follow |Δ| ∓ z·SE ∓ b against τ (DESIGN
 function statsOf(prices: number[], n = 50): ColumnStats {
   const k = prices.length;
   const rows: number[][] = [];
-  for (let p = 0; p < n; p++) rows.push(prices.map((v, m) => v + (p % 2 ? 1 : -1) * (1 + 0.1 * m + 0.01 * p)));
+  for (let p = 0; p < n; p++)
+    rows.push(prices.map((v, m) => v + (p % 2 ? 1 : -1) * (1 + 0.1 * m + 0.01 * p)));
   const mean = prices.map((_, m) => rows.reduce((s, r) => s + r[m]!, 0) / n);
   const cov = prices.map((_, a) =>
     prices.map((__, b) => rows.reduce((s, r) => s + (r[a]! - mean[a]!) * (r[b]! - mean[b]!), 0) / (n - 1)),
