@@ -31,3 +31,4 @@ export * from './sources/dealExerciseSource.ts';
 export * from './exercisePathEvaluator.ts';
 export * from './priceDealExercise.ts';
 export { exercisePayoffFactoryUrl, type ExercisePayoffDescription } from './exercisePayoffFactory.ts';
+export * from './exerciseSummary.ts';
