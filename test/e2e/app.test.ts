@@ -124,6 +124,13 @@ describe('browser build', () => {
       await app.page.waitForSelector('[data-path="settings.paths"]');
       expect(await app.page.inputValue('[data-path="settings.paths"]')).toBe('12k');
       expect(await app.page.textContent(msg)).toMatch(/not a number/);
+      // Alt+2 goes to the Deal screen; leaving the page with unsaved changes asks first.
+      await app.page.keyboard.press('Alt+2');
+      await app.page.waitForSelector('[data-testid=deal-status]');
+      await app.page.fill('[data-path="deal.name"]', 'Renamed deal');
+      await app.page.close({ runBeforeUnload: true });
+      await new Promise((r) => setTimeout(r, 500));
+      expect(app.dialogs).toContain('beforeunload');
     } finally {
       await app.close();
     }
@@ -207,9 +214,10 @@ describe('browser build', () => {
       const before = await app.page.textContent('[data-testid=answer]');
       await app.pickTemplate('autocallable-memory');
       await app.smallRun(262144, 4096, 4096, false);
-      await app.page.click('[data-testid=run-study]');
+      // Keyboard only: Ctrl+Enter runs, Escape cancels.
+      await app.page.keyboard.press('Control+Enter');
       await app.page.waitForSelector('[data-testid=run-progress]');
-      await app.page.click('[data-testid=cancel-run]');
+      await app.page.keyboard.press('Escape');
       await app.page.waitForSelector('[data-testid=run-cancelled]', { timeout: 20_000 });
       expect(await app.page.textContent('[data-testid=answer]')).toBe(before);
       expect(await app.page.isEnabled('[data-testid=run-study]')).toBe(true);

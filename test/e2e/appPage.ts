@@ -34,6 +34,8 @@ const MONITOR = `
 
 export class AppPage {
   readonly errors: string[] = [];
+  /** Types of the dialogs the page opened (all accepted). */
+  readonly dialogs: string[] = [];
   private constructor(
     readonly context: BrowserContext,
     readonly page: Page,
@@ -48,7 +50,10 @@ export class AppPage {
     const page = await context.newPage();
     const app = new AppPage(context, page);
     page.on('pageerror', (e) => app.errors.push(e.message));
-    page.on('dialog', (d) => void d.accept());
+    page.on('dialog', (d) => {
+      app.dialogs.push(d.type());
+      void d.accept();
+    });
     await page.goto(url);
     await page.waitForSelector('.frame');
     return app;
