@@ -289,6 +289,27 @@ ${
     7,
   )} (spread ${fmt(s.results.modelRisk.spread)} ${esc(ccy)}, variants ${esc(s.results.modelRisk.variants.join(', '))}).</p>`);
 
+  // 5b. Early exercise
+  const ex = s.ladder.filter((v) => v.exercise);
+  if (ex.length)
+    sec.push(`<h2>Early exercise</h2>
+<p class="muted">Each variant exercises the deal's right by its own Longstaff–Schwartz (2001) policy, fitted on separate regression paths; the Andersen–Broadie (2004) dual gives the other bound. The gap between the two enters the error budget of every Δ that involves the variant. ${esc(ex[0]!.exercise!.biasNote)}</p>
+${table(
+  ['Variant', 'Policy estimate', 'SE', 'Dual bound', 'Gap', 'Gap SE', 'Never exercised'],
+  ex.map((v) => {
+    const e = v.exercise!;
+    return [
+      esc(v.label),
+      fmt(e.primal.value, 8),
+      fmt(e.primal.se, 3),
+      e.dual ? fmt(e.dual.value, 8) : '—',
+      e.dual ? fmt(e.dual.gap, 4) : '—',
+      e.dual ? fmt(e.dual.gapSe, 3) : '—',
+      pct(e.neverExercised, 1),
+    ];
+  }),
+)}`);
+
   // 6. Δ with intervals
   const withD = s.verdicts.filter((v) => v.decision);
   sec.push(`<h2>Factor impact with confidence intervals</h2>
@@ -305,15 +326,19 @@ ${intervalChart({
   })),
 })}
 ${table(
-  ['Factor', 'Δ', 'SE', 'z', 'Budget b', 'of which step halving'],
-  withD.map((v) => [
-    esc(label(v.factor)),
-    fmt(v.decision!.delta),
-    fmt(v.decision!.se, 3),
-    fmt(v.decision!.z, 4),
-    fmt(v.decision!.budget, 3),
-    fmt(s.results.stepHalving[v.factor] ?? null, 3),
-  ]),
+  ['Factor', 'Δ', 'SE', 'z', 'Budget b', 'of which step halving', 'change on the halved grid ± SE'],
+  withD.map((v) => {
+    const c = s.results.stepHalvingChange?.[v.factor];
+    return [
+      esc(label(v.factor)),
+      fmt(v.decision!.delta),
+      fmt(v.decision!.se, 3),
+      fmt(v.decision!.z, 4),
+      fmt(v.decision!.budget, 3),
+      fmt(s.results.stepHalving[v.factor] ?? null, 3),
+      c ? `${fmt(c.value, 3)} ± ${fmt(c.se, 3)}` : '—',
+    ];
+  }),
 )}`);
 
   // 7. Attribution

@@ -14,7 +14,7 @@ import { makeDriverLayout } from '../simulation/drivers.ts';
 import { modelBreakTimes, prepareVariant } from '../simulation/pathGenerator.ts';
 import { findTime, makeTimeGrid, type TimeGrid } from '../simulation/timeGrid.ts';
 import { batchSums, emptySums, mergeSums, type MomentSums } from '../simulation/momentSums.ts';
-import type { VariantSpec } from '../simulation/types.ts';
+import type { PathEvaluator, VariantSpec } from '../simulation/types.ts';
 import { EngineError } from '../errors.ts';
 
 const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
@@ -51,6 +51,8 @@ export async function runStepHalving(args: {
   batchSize: number;
   signal?: AbortSignal;
   onBatch?: (done: number, total: number) => void;
+  /** Evaluator per variant (e.g. with a fitted exercise policy); default: the deal without exercise rights. */
+  evaluators?: PathEvaluator[];
 }): Promise<StepHalvingRun> {
   const { variants, deal } = args;
   const coarse = makeTimeGrid(args.eventTimes, args.maxStep, modelBreakTimes(variants));
@@ -63,7 +65,8 @@ export async function runStepHalving(args: {
   const w = layout.width;
   const pc = variants.map((v) => prepareVariant(v, coarse, layout));
   const pf = variants.map((v) => prepareVariant(v, fine, layout));
-  const ev = makeDealEvaluator(deal);
+  const plain = makeDealEvaluator(deal);
+  const evOf = (vi: number): PathEvaluator => args.evaluators?.[vi] ?? plain;
   const nc = coarse.times.length - 1;
   let sums = emptySums(2 * variants.length);
   let pathSeconds = 0;
@@ -94,7 +97,7 @@ export async function runStepHalving(args: {
         const t0 = now();
         const batch = pv.simulate(z, n);
         const t1 = now();
-        cols.push(ev(batch));
+        cols.push(evOf(vi)(batch));
         const t2 = now();
         pathSeconds += (t1 - t0) / 1000;
         payoffSeconds += (t2 - t1) / 1000;

@@ -20,6 +20,13 @@ import { calibrateLocalVol } from '../calibration/localVolCalibration.ts';
 import { equityForward } from '../calibration/volGrid.ts';
 import type { BatchExecutor } from '../simulation/runSimulation.ts';
 import { studyInProcessExecutor } from './studyExecutor.ts';
+import { priceDealExercise } from '../exercise/priceDealExercise.ts';
+import { makeExercisePathEvaluator } from '../exercise/exercisePathEvaluator.ts';
+import {
+  exercisePayoffFactoryUrl,
+  type ExercisePayoffDescription,
+} from '../exercise/exercisePayoffFactory.ts';
+import type { ExercisePolicy } from '../exercise/types.ts';
 import type { RunSpec } from '../simulation/runSpec.ts';
 import { columnStats, type MomentSums } from '../simulation/momentSums.ts';
 import type { PathShift, VariantSpec } from '../simulation/types.ts';
@@ -359,16 +366,73 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
   checkAbort();
 
   const vanillas = fairnessVanillas(snap, analysis);
-  const eventTimes = [...new Set([...compiled.gridTimes, ...vanillas.map((v) => v.expiry)])].sort(
-    (a, b) => a - b,
-  );
+  const eventTimes = [
+    ...new Set([
+      ...compiled.gridTimes,
+      ...compiled.exercise.flatMap((e) => e.times),
+      ...vanillas.map((v) => v.expiry),
+    ]),
+  ].sort((a, b) => a - b);
   if (eventTimes.length === 0)
     fail('E_NO_DATES', 'deal.schedules', 'must give at least one date after the valuation date', undefined);
   const maxStep = Math.min(S.maxStep, Math.max(...eventTimes));
   const makeExec = opts.makeExecutor ?? (() => studyInProcessExecutor());
   const executor = makeExec(workers);
   let simSeconds = 0;
+  let exerciseSeconds = 0;
   try {
+    // --- early exercise: a Longstaff–Schwartz policy per variant on its own regression paths, with the
+    // Andersen–Broadie dual bound; the study's runs then price every variant with its policy on the common paths.
+    const hasExercise = compiled.exercise.length > 0;
+    const policies: Record<string, ExercisePolicy> = {};
+    const gapOf: Record<string, number> = {};
+    if (hasExercise) {
+      const exVariants = [...variants, ...(lvVariant ? [lvVariant.spec] : [])];
+      const outer = Math.min(1000, Math.max(64, Math.round(aux / 16)));
+      const t0 = now();
+      exVariants.forEach((v, i) => {
+        checkAbort();
+        progress(0.02 + (0.03 * i) / exVariants.length, 'early exercise', v.label);
+        const r = priceDealExercise({
+          compiled,
+          variant: v,
+          layoutVariants: variants,
+          maxStep,
+          settings: {
+            seed: S.seed,
+            regressionPaths: aux,
+            pricingPaths: S.batchSize,
+            batchSize: S.batchSize,
+            dual: { outerPaths: outer, innerPaths: 64 },
+          },
+        });
+        policies[v.id] = r.policy;
+        const d = r.estimate.dual;
+        gapOf[v.id] = d ? d.gap + 2 * d.gapSe : 0;
+        const lv = allVariants.find((x) => x.spec.id === v.id)!;
+        lv.exercise = {
+          policy: r.policy,
+          primal: { value: r.estimate.primal.value, se: r.estimate.primal.se },
+          dual: d
+            ? { value: d.value, gap: d.gap, gapSe: d.gapSe, se: d.se, nOuter: d.nOuter, nInner: d.nInner }
+            : null,
+          exerciseProbability: r.estimate.exerciseProbability,
+          neverExercised: r.estimate.neverExercised,
+          biasNote: r.estimate.biasNote,
+        };
+      });
+      // Bumped variants (vega) and swept variants keep the policy of the variant they come from (held fixed).
+      for (const v of variants) {
+        policies[`${v.id}/vol+`] = policies[v.id]!;
+        policies[`${v.id}/vol-`] = policies[v.id]!;
+      }
+      exerciseSeconds = (now() - t0) / 1000;
+      void exerciseSeconds;
+      limitations.push(
+        `Exercise rights are exercised by a Longstaff–Schwartz policy fitted per variant on ${aux} regression paths (the study's paths price them); the Andersen–Broadie gap (${outer} outer × 64 inner paths) enters each factor's error budget. Hedge ratios and sweeps hold each policy fixed.`,
+      );
+    }
+
     // --- step halving (in process, same random numbers on both grids)
     progress(0.05, 'step halving', `${stepPaths} paths on the study grid and on the halved grid`);
     const sh = await runStepHalving({
@@ -380,6 +444,9 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       paths: stepPaths,
       batchSize: S.batchSize,
       signal: opts.signal,
+      ...(hasExercise
+        ? { evaluators: variants.map((v) => makeExercisePathEvaluator(compiled, policies[v.id]!)) }
+        : {}),
       onBatch: (d, t) => progress(0.05 + 0.1 * (d / t), 'step halving'),
     });
     const shStats = toStats(sh.sums);
@@ -426,7 +493,12 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
     }
     const nSc = scenarios.length;
     const col = (mask: number, sc = 0) => mask * nSc + sc;
-    const payoff = { factory: studyDealFactoryUrl(), description: { deals: [compiled] } };
+    const payoff = hasExercise
+      ? {
+          factory: exercisePayoffFactoryUrl(),
+          description: { deals: [{ compiled, policies }] } satisfies ExercisePayoffDescription,
+        }
+      : { factory: studyDealFactoryUrl(), description: { deals: [compiled] } };
 
     // --- vega run (recalibrated variants, same grid and seed → same paths); only the richest variant and the
     // leave-one-out variants, which the vega tests and the calibration budget need
@@ -524,16 +596,13 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       limitations.push(
         'The error budget has no calibration-residual part: hedge ratios (vega) were not computed.',
       );
-    const exerciseGap: number | null = null;
-    if (analysis.exercise.present)
-      limitations.push(
-        'Exercise rights are not priced: prices are those of the deal without its early-exercise right, and the error budget has no exercise-bound gap (lower/upper bound pair not computed).',
-      );
+    const gapFor = (a: number, b: number): number | null =>
+      hasExercise ? (gapOf[variants[a]!.id] ?? 0) + (gapOf[variants[b]!.id] ?? 0) : null;
 
     const budgetFor = (fi: number): ErrorBudget => ({
       stepHalving: stepHalving[candidates[fi]!]!,
       calibration: calBudget(full, looFor(fi)),
-      exerciseGap,
+      exerciseGap: gapFor(full, looFor(fi)),
     });
     const estimatesAt = (st: ColumnStats): FactorEstimate[] =>
       candidates.map((f, fi) => {
@@ -584,7 +653,10 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
             dropped,
             difference: jd.value,
             se: jd.se,
-            budget: stepBudget({ [keepMask]: 1, [full]: -1 }) + calBudget(keepMask, full),
+            budget:
+              stepBudget({ [keepMask]: 1, [full]: -1 }) +
+              calBudget(keepMask, full) +
+              (gapFor(keepMask, full) ?? 0),
             tau,
             alpha: S.alpha,
           })

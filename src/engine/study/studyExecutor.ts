@@ -10,10 +10,12 @@ import type { BatchExecutor } from '../simulation/runSimulation.ts';
 import type { PayoffFactory, RunSpec } from '../simulation/runSpec.ts';
 import * as dealFactory from './studyDealFactory.ts';
 import * as fairnessFactory from './fairnessPayoffFactory.ts';
+import * as exerciseFactory from '../exercise/exercisePayoffFactory.ts';
 
 const FACTORIES: Record<string, PayoffFactory> = {
   [dealFactory.studyDealFactoryUrl()]: dealFactory,
   [fairnessFactory.fairnessPayoffFactoryUrl()]: fairnessFactory,
+  [exerciseFactory.exercisePayoffFactoryUrl()]: exerciseFactory,
 };
 
 /** An in-thread executor for the study's run specs. */

@@ -112,6 +112,18 @@ export interface LadderVariant {
   /** Role in the study. */
   role: 'ladder' | 'localVol' | 'naive';
   spec: VariantSpec;
+  /**
+   * Early exercise under this variant (deals with exercise rights): the Longstaff–Schwartz policy fitted on its own
+   * regression paths (used on the study's paths), its policy estimate and the Andersen–Broadie dual bound.
+   */
+  exercise?: {
+    policy: unknown;
+    primal: ValueSe;
+    dual: { value: number; gap: number; gapSe: number; se: number; nOuter: number; nInner: number } | null;
+    exerciseProbability: { time: number; probability: number }[];
+    neverExercised: number;
+    biasNote: string;
+  };
   calibration: {
     /** exact / approximate / none: whether pricing the instruments used a characteristic function. */
     characteristicFunction: 'exact' | 'approximate' | 'none';

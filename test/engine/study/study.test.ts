@@ -331,4 +331,26 @@ describe('verdicts on the sample deals', () => {
     );
     expect(Math.abs(lv.total.value - lv.smile.value - lv.dynamics.value)).toBeLessThan(1e-6 * deal.notional);
   });
+
+  it("prices an issuer-callable note with each variant's exercise policy and budgets the bound gap", async () => {
+    // The same fitted policy valued on two independent sets of paths (the exercise layer's pricing pass and the
+    // study's main run) estimates one number: the two must agree within 3 combined SE (common practice). The
+    // Andersen–Broadie (2004) gap of both variants of a Δ enters its budget (triangle inequality).
+    const deal = read('samples/deals/callable-equity-linked-note.json');
+    const s = await run(deal, { paths: 16384 });
+    const ladder = s.ladder.filter((v) => v.role === 'ladder');
+    for (const [i, v] of ladder.entries()) {
+      const e = v.exercise!;
+      const p = s.results.prices[i]!;
+      const se = Math.sqrt(e.primal.se ** 2 + p.se ** 2);
+      expect(
+        Math.abs(e.primal.value - p.value),
+        report(`${v.id} policy value`, p.value, e.primal.value, se),
+      ).toBeLessThanOrEqual(3 * se);
+      expect(e.dual!.gap).toBeGreaterThanOrEqual(0);
+    }
+    const d = s.verdicts.find((x) => x.status === 'candidate')!.decision!;
+    const gaps = ladder.reduce((t, v) => t + v.exercise!.dual!.gap + 2 * v.exercise!.dual!.gapSe, 0);
+    expect(d.budget).toBeGreaterThanOrEqual(gaps - 1e-9);
+  });
 });
