@@ -370,7 +370,7 @@ ${table(
     sec.push(`<h2>Hedge ratios</h2>
 <p class="muted">Central bumps on the same paths: delta by rescaling the equity paths by 1 ± ${fmt(
       set.greeks?.spotBump ?? 0,
-    )} (sticky moneyness: under Heston and Black–Scholes the smile moves with spot), rho by a parallel shift of ± ${fmt(
+    )} (sticky moneyness: the whole smile moves with spot — under Black–Scholes the term-structure vol is unchanged, under Heston the parameters and today's variance are unchanged, under local vol the surface, set in ln(K/F), moves with the forward; short rates and FX are not moved; the deal's struck levels stay at today's fixing), rho by a parallel shift of ± ${fmt(
       (set.greeks?.rateBump ?? 0) * 1e4,
     )} bp of the domestic curve, vega by ± ${fmt((set.greeks?.volBump ?? 0) * 100)} vol point(s) on the whole grid with each variant recalibrated from its fitted parameters. Delta per 1% spot, vega per vol point, rho per basis point, all in the deal currency; thresholds in basis points of notional.</p>
 ${table(

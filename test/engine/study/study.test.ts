@@ -354,3 +354,34 @@ describe('verdicts on the sample deals', () => {
     expect(d.budget).toBeGreaterThanOrEqual(gaps - 1e-9);
   });
 });
+
+describe('running a study', () => {
+  it('reports progress up to 1 and stops with a clear error when cancelled', async () => {
+    const seen: number[] = [];
+    const s = await runStudy(
+      { deal: european, markets: [market], settings: { ...base, paths: 8192, firstPaths: 4096 } },
+      { onProgress: (p) => seen.push(p.fraction) },
+    );
+    expect(s.format).toBe('factor-triage/study@1');
+    expect(seen[seen.length - 1]).toBe(1);
+    for (let i = 1; i < seen.length; i++) expect(seen[i]!).toBeGreaterThanOrEqual(seen[i - 1]! - 1e-12);
+    const ac = new AbortController();
+    ac.abort();
+    await expect(
+      runStudy(
+        { deal: european, markets: [market], settings: { ...base, paths: 8192, firstPaths: 4096 } },
+        { signal: ac.signal },
+      ),
+    ).rejects.toThrow(/cancelled/);
+  });
+  it('names the field of a bad setting and of a deal underlying the market lacks', async () => {
+    await expect(run(european, { threshold: { kind: 'bp', value: 0 } })).rejects.toThrow(
+      /settings\.threshold\.value/,
+    );
+    await expect(run(european, { paths: 10000 })).rejects.toThrow(/settings\.batchSize/);
+    const d = JSON.parse(JSON.stringify(european));
+    d.underlyings = { ZEPH: { kind: 'equity', currency: 'DOM' } };
+    d.events[0].pay.amount = 'max(perf(ZEPH) - strike, 0)';
+    await expect(run(d, {})).rejects.toThrow(/deal\.underlyings\.ZEPH/);
+  });
+});
