@@ -12,7 +12,7 @@ import { useApp } from '../state/appContext.ts';
 import { DEFAULT_SETTINGS } from '../state/document.ts';
 import { IntervalChart, LineChart } from '../components/charts.tsx';
 import { CheckField, NumberField, SelectField, TextField } from '../components/fields.tsx';
-import { num, secs } from '../components/format.ts';
+import { num, pct, secs } from '../components/format.ts';
 import { VerdictMark } from '../components/verdict.tsx';
 import type { ScreenId } from '../App.tsx';
 
@@ -647,33 +647,65 @@ const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stal
   );
 });
 
-/** Exercise probabilities per date, when the study file carries them (callable deals). */
+/** Early exercise (callable or puttable deals): exercise probability per date and the bounds, per variant. */
 function ExerciseSection(props: { study: SavedStudy }) {
-  const r = props.study.results as unknown as {
-    exercise?:
-      { dates?: { t: number; probability: number }[]; variant?: string; lowerUpperGap?: number }[] | null;
-  };
-  const ex = Array.isArray(r.exercise) ? r.exercise : [];
-  const times = props.study.analysis.exercise.times;
+  const s = props.study;
+  const ccy = s.input.deal.currency;
+  const ex = s.analysis.exercise;
+  const withEx = s.ladder.filter((v) => v.exercise);
   return (
     <section>
       <h2>Early exercise</h2>
       <p className="hint">
-        The deal is callable or puttable ({props.study.analysis.exercise.holders.join(', ')}) on{' '}
-        {times.length} date(s): {props.study.analysis.exercise.reason}
+        Exercise rights held by the {ex.holders.join(' and ')} on {ex.times.length} date(s): {ex.reason}
       </p>
-      {ex.length > 0 ? (
-        <LineChart
-          title="Probability of exercise at each date"
-          xLabel="years"
-          yLabel="probability"
-          series={ex.map((e, i) => ({
-            name: e.variant ?? `variant ${i + 1}`,
-            points: (e.dates ?? []).map((d) => ({ x: d.t, y: d.probability })),
-          }))}
-        />
+      {withEx.length === 0 ? (
+        <p className="msg-warn">
+          This study file holds no exercise estimates (it was written before they were part of a study).
+        </p>
       ) : (
-        <p className="msg-warn">This study file holds no exercise probabilities per date.</p>
+        <>
+          <LineChart
+            title="Probability of exercise at each date"
+            xLabel="years"
+            yLabel="probability"
+            yFormat={(v) => `${Math.round(v * 100)}%`}
+            series={withEx.map((v) => ({
+              name: v.label,
+              points: v.exercise!.exerciseProbability.map((d) => ({ x: d.time, y: d.probability })),
+            }))}
+          />
+          <table className="data" data-testid="exercise-table">
+            <thead>
+              <tr>
+                <th>Variant</th>
+                <th className="num">Policy value ({ccy})</th>
+                <th className="num">Dual upper bound</th>
+                <th className="num">Gap</th>
+                <th className="num">Never exercised</th>
+              </tr>
+            </thead>
+            <tbody>
+              {withEx.map((v) => {
+                const e = v.exercise!;
+                return (
+                  <tr key={v.id}>
+                    <td>{v.label}</td>
+                    <td className="num">
+                      {num(e.primal.value, 6)} ± {num(e.primal.se, 2)}
+                    </td>
+                    <td className="num">{e.dual ? num(e.dual.value, 6) : '—'}</td>
+                    <td className="num">
+                      {e.dual ? `${num(e.dual.gap, 3)} ± ${num(e.dual.gapSe, 2)}` : '—'}
+                    </td>
+                    <td className="num">{pct(e.neverExercised, 1)}</td>
+                  </tr>
+                );
+              })}
+            </tbody>
+          </table>
+          {withEx[0]!.exercise!.biasNote && <p className="hint">{withEx[0]!.exercise!.biasNote}</p>}
+        </>
       )}
     </section>
   );
