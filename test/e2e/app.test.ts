@@ -19,6 +19,8 @@ const work = fs.mkdtempSync(path.join(os.tmpdir(), 'ft-e2e-'));
 let server: PreviewServer;
 let browser: Browser;
 let url = '';
+/** A study run and saved in the browser (by the re-run test), for the command-line check. */
+let browserMade = '';
 
 const readJson = <T>(p: string): T => JSON.parse(fs.readFileSync(path.join(root, p), 'utf8')) as T;
 
@@ -32,6 +34,8 @@ function cli(...args: string[]): { status: number | null; out: string } {
   return { status: r.status, out: `${r.stdout}\n${r.stderr}` };
 }
 
+const cliMadeA = path.join(work, 'cli-made.study.json');
+const cliMadeB = path.join(work, 'cli-made-wider.study.json');
 const SMALL = [
   '--paths',
   '2048',
@@ -161,7 +165,7 @@ describe('browser build', () => {
     }
   });
 
-  it('changing the threshold and re-running updates the verdicts, with no main-thread task over 200 ms; the saved study verifies in Node', async () => {
+  it('changing the threshold and re-running updates the verdicts with no main-thread task over 200 ms; the saved study opens again and re-runs bit for bit in the browser', async () => {
     const app = await AppPage.open(browser, url);
     try {
       await app.page.waitForSelector('[data-screen=triage]');
@@ -199,12 +203,16 @@ describe('browser build', () => {
       await app.page.click('[data-testid=verify]');
       await app.page.waitForSelector('[data-testid=verify-result]', { timeout: 120_000 });
       expect(await app.page.textContent('[data-testid=verify-result]')).toMatch(/Reproduced bit for bit/);
-      // …and from the command line in Node.
-      const v = cli('verify', saved);
-      expect(v.status, `factor-triage verify of the browser-made study:\n${v.out}`).toBe(0);
+      browserMade = saved;
     } finally {
       await app.close();
     }
+  });
+
+  it('a study saved from the browser verifies bit for bit from the command line', () => {
+    expect(browserMade, 'the previous test saves the browser-made study').not.toBe('');
+    const v = cli('verify', browserMade);
+    expect(v.status, `factor-triage verify of the browser-made study:\n${v.out}`).toBe(0);
   });
 
   it('a run can be cancelled and the previous results stay', async () => {
@@ -226,9 +234,7 @@ describe('browser build', () => {
     }
   });
 
-  it('a study made by the command line verifies bit for bit in the browser, and two studies can be compared', async () => {
-    const fileA = path.join(work, 'node-made.study.json');
-    const fileB = path.join(work, 'node-made-wider.study.json');
+  it('two studies made by the command line open in the browser and can be compared', async () => {
     const deal = 'samples/deals/autocallable-memory.json';
     const market = 'samples/market/demo-market.json';
     const ra = cli(
@@ -237,7 +243,7 @@ describe('browser build', () => {
       market,
       ...SMALL,
       '--out',
-      fileA,
+      cliMadeA,
       '--report',
       path.join(work, 'a.report.html'),
     );
@@ -250,7 +256,7 @@ describe('browser build', () => {
       '--bp',
       '40',
       '--out',
-      fileB,
+      cliMadeB,
       '--report',
       path.join(work, 'b.report.html'),
     );
@@ -259,18 +265,32 @@ describe('browser build', () => {
     try {
       await app.page.waitForSelector('[data-screen=review]');
       await app.screen('review');
-      await app.upload('[data-testid=review-open]', fileA);
+      await app.upload('[data-testid=review-open]', cliMadeA);
       await app.page.waitForFunction(() =>
-        document.querySelector('[data-testid=doc-title]')?.textContent?.startsWith('node-made'),
+        document.querySelector('[data-testid=doc-title]')?.textContent?.startsWith('cli-made'),
       );
-      await app.upload('[data-testid=diff-open]', fileB);
+      await app.upload('[data-testid=diff-open]', cliMadeB);
       await app.page.waitForSelector('[data-testid=diff-settings]', { timeout: 10_000 });
       expect(await app.page.textContent('[data-testid=diff-settings]')).toMatch(/settings\.threshold\.value/);
       await app.shot(shots, 'diff', '[data-testid=diff-result]');
+    } finally {
+      await app.close();
+    }
+  });
+
+  it('a study made by the command line verifies bit for bit in the browser', async () => {
+    expect(fs.existsSync(cliMadeA), 'the previous test writes the command-line study').toBe(true);
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.page.waitForSelector('[data-screen=review]');
+      await app.screen('review');
+      await app.upload('[data-testid=review-open]', cliMadeA);
+      await app.page.waitForFunction(() =>
+        document.querySelector('[data-testid=doc-title]')?.textContent?.startsWith('cli-made'),
+      );
       await app.page.click('[data-testid=verify]');
       await app.page.waitForSelector('[data-testid=verify-result]', { timeout: 120_000 });
       await app.shot(shots, 'review');
-      // Re-running in the browser a study made by the command line's engine in Node.
       expect(await app.page.textContent('[data-testid=verify-result]')).toMatch(/Reproduced bit for bit/);
     } finally {
       await app.close();

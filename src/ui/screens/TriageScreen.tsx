@@ -274,6 +274,33 @@ function RunPanel(props: { canRun: boolean }) {
           value={s.localVol}
           onChange={(v) => set({ localVol: v })}
         />
+        <NumberField
+          label="Share of paths for step halving, sweeps and other dates"
+          path="settings.auxiliaryFraction"
+          value={s.auxiliaryFraction}
+          rule={{ above: 0, max: 1 }}
+          onCommit={(v) => set({ auxiliaryFraction: v })}
+        />
+        <div className="field">
+          <span className="group-label">
+            Also simulate, to confirm the rules (factors they call not needed)
+          </span>
+          {(['stochVol', 'domesticRate', 'foreignRate'] as const).map((f) => (
+            <CheckField
+              key={f}
+              label={factorName(f)}
+              path={`settings.extraCandidates.${f}`}
+              value={s.extraCandidates.includes(f)}
+              onChange={(on) =>
+                set({
+                  extraCandidates: on
+                    ? [...s.extraCandidates.filter((x) => x !== f), f]
+                    : s.extraCandidates.filter((x) => x !== f),
+                })
+              }
+            />
+          ))}
+        </div>
       </fieldset>
       <fieldset>
         <legend>Hedge ratios</legend>
@@ -511,6 +538,38 @@ const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stal
                   <td className="num">{num(gv.decision.delta, 4)}</td>
                   <td className="num">{num(gv.decision.z * gv.decision.se, 3)}</td>
                   <td className="num">{num(gv.threshold, 3)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </section>
+      )}
+
+      {r.greeks && r.greeks.length > 0 && (
+        <section>
+          <h2>Hedge ratios per variant</h2>
+          <table className="data" data-testid="greeks">
+            <thead>
+              <tr>
+                <th>Variant</th>
+                <th className="num">Delta (per 1% spot)</th>
+                <th className="num">Vega (per vol point)</th>
+                <th className="num">Rho (per bp)</th>
+              </tr>
+            </thead>
+            <tbody>
+              {r.greeks.map((gr) => (
+                <tr key={gr.variant}>
+                  <td>{s.ladder.find((v) => v.id === gr.variant)?.label ?? gr.variant}</td>
+                  <td className="num">
+                    {num(gr.delta.value, 4)} ± {num(gr.delta.se, 2)}
+                  </td>
+                  <td className="num">
+                    {gr.vega ? `${num(gr.vega.value, 4)} ± ${num(gr.vega.se, 2)}` : '—'}
+                  </td>
+                  <td className="num">
+                    {num(gr.rho.value, 4)} ± {num(gr.rho.se, 2)}
+                  </td>
                 </tr>
               ))}
             </tbody>
