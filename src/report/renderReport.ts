@@ -98,7 +98,7 @@ figure{margin:10px 0 16px}figure svg{width:100%;height:auto;max-width:680px;disp
 figcaption{color:var(--muted);font-size:12px}
 .plot-bg{fill:#fff;stroke:var(--line)}.grid{stroke:#eef2f7}.zone{fill:#e2e8f0;opacity:.6}
 .tick{font-size:10px;fill:var(--muted)}.axis{font-size:11px;fill:var(--ink)}.legend{font-size:11px}
-.muted{color:var(--muted)}code{background:var(--panel);padding:1px 4px;border-radius:3px;font-size:12px}
+.muted{color:var(--muted)}.wide{overflow-x:auto}code{background:var(--panel);padding:1px 4px;border-radius:3px;font-size:12px}
 ul.tight li{margin:2px 0}
 @media print{main{padding:0}h2{break-after:avoid}figure,table{break-inside:avoid}.answer{break-inside:avoid}}
 `;
@@ -452,7 +452,7 @@ ${table(
       Object.keys(s.results.stability[0]!.params[p] ?? {}).map((k) => `${p}.${k}`),
     );
     sec.push(
-      `<h3>Parameter and verdict stability across snapshots</h3>${table(
+      `<h3>Parameter and verdict stability across snapshots</h3><div class="wide">${table(
         ['Date', ...s.verdicts.map((v) => esc(v.factor)), ...names.map(esc)],
         s.results.stability.map((r) => [
           esc(r.date),
@@ -462,17 +462,18 @@ ${table(
             return fmt(r.params[p!]?.[k!] ?? null, 4);
           }),
         ]),
-      )}`,
+      )}</div>`,
     );
   }
 
   // 12. Convergence
   if (s.results.convergence.length) {
     const factors = Object.keys(s.results.convergence[0]!.deltas);
-    const z = s.verdicts.find((v) => v.decision)?.decision?.z ?? 2;
+    const z = 2;
     sec.push(
       `<h2>Convergence</h2>${lineChart({
-        title: `Δ per factor against paths at each look (band ± z·SE, z = ${fmt(z, 3)}); shaded: |Δ| < τ`,
+        title:
+          'Δ per factor against paths at each look (band ± 2 SE; each look decides with its own z, shown above); shaded: |Δ| < τ',
         xLabel: 'paths',
         yLabel: `Δ (${ccy})`,
         logX: true,
