@@ -347,3 +347,15 @@ describe('calibration stability through the protocol', () => {
     expect(isApiError(e) && e.code).toBe('E_TOO_FEW_SNAPSHOTS');
   });
 });
+
+describe('deal review through the protocol', () => {
+  it('a valid deal comes back compiled, analysed, and with the rules’ finding for every factor group', async () => {
+    const { readFileSync } = await import('node:fs');
+    const deal = JSON.parse(readFileSync('samples/deals/european-call.json', 'utf8'));
+    const { client } = pair(engineHandlers);
+    const r = await client.call('deal.check', { deal });
+    expect(r.issues.filter((i) => i.severity === 'error')).toEqual([]);
+    expect(r.analysis?.equities.map((e) => e.id)).toEqual(['ALDR']);
+    expect(r.rules?.factors.map((f) => f.factor).sort()).toEqual(['domesticRate', 'foreignRate', 'stochVol']);
+  });
+});

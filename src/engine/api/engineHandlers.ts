@@ -12,6 +12,7 @@ import { correlationIssues } from '../market/correlation.ts';
 import { parseSnapshot } from '../market/snapshot.ts';
 import { parseStudyFile, checkStudyHash } from '../study/savedStudy.ts';
 import { diffStudies } from '../study/diff.ts';
+import { applyRules, DEFAULT_RULE_SETTINGS, type RuleSettings } from '../study/rules.ts';
 import { runStudy } from '../study/study.ts';
 import { verifyStudy } from '../study/verify.ts';
 import { calibrationStability } from '../calibration/calibrationStability.ts';
@@ -62,11 +63,11 @@ function issueOf(e: EngineError): FieldIssue {
   };
 }
 
-function dealCheck(deal: unknown): DealReview {
+function dealCheck(deal: unknown, rules?: RuleSettings): DealReview {
   const check = checkDeal(deal);
-  let analysis: DealAnalysis | null = null;
-  if (check.compiled) analysis = analyseDeal(check.compiled);
-  return { ...check, analysis };
+  if (!check.compiled) return { ...check, analysis: null, rules: null };
+  const analysis: DealAnalysis = analyseDeal(check.compiled);
+  return { ...check, analysis, rules: applyRules(analysis, rules ?? DEFAULT_RULE_SETTINGS) };
 }
 
 function openStudy(text: string): OpenedStudy {
@@ -94,7 +95,7 @@ export const engineHandlers: Omit<EngineHandlers, 'report.render'> & Partial<Eng
     protocol: PROTOCOL_VERSION,
     methods: Object.keys(engineHandlers) as EngineMethod[],
   }),
-  'deal.check': ({ deal }) => dealCheck(deal),
+  'deal.check': ({ deal, rules }) => dealCheck(deal, rules),
   'market.check': ({ snapshot }) => marketCheck(snapshot),
   'deal.checkExpression': ({ text, context }) => {
     const r = checkExpression(text, context);

@@ -7,6 +7,7 @@
 import type { FieldIssue } from '../errors.ts';
 import type { DealCheck } from '../deal/compileDeal.ts';
 import type { DealAnalysis } from '../deal/types.ts';
+import type { RuleSettings, RulesResult } from '../study/rules.ts';
 import type { CheckResult, ExpressionContext } from '../deal/checkExpression.ts';
 import type { SavedStudy, StudyInput } from '../study/types.ts';
 import type { StudyDiff } from '../study/diff.ts';
@@ -32,6 +33,8 @@ export interface CorrelationCheck {
 export interface DealReview extends DealCheck {
   /** What the study's rules read in the deal; null while the deal has errors. */
   analysis: DealAnalysis | null;
+  /** The rules' finding per factor group (required, candidate, not needed) with reasons; null while the deal has errors. */
+  rules: RulesResult | null;
 }
 
 /** A market snapshot checked: every error and warning, by field. */
@@ -66,7 +69,7 @@ export interface EngineMethods {
   /** Protocol version and the methods this engine build serves. */
   'engine.info': { args: Record<string, never>; result: { protocol: number; methods: EngineMethod[] } };
   /** Checks a whole deal file (raw JSON value); every problem names its field, expression errors carry positions. */
-  'deal.check': { args: { deal: unknown }; result: DealReview };
+  'deal.check': { args: { deal: unknown; rules?: RuleSettings }; result: DealReview };
   /** Checks a whole market snapshot (raw JSON value): schema and meaning, errors and warnings by field. */
   'market.check': { args: { snapshot: unknown }; result: MarketCheck };
   /** Checks one payoff expression against the names the deal declares (check-as-you-type). */

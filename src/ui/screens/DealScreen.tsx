@@ -14,6 +14,13 @@ import type {
 import type { DealReview } from '../../engine/api/index.ts';
 import { errorText, useApp } from '../state/appContext.ts';
 import { DEAL_TEMPLATES } from '../state/samples.ts';
+import { VerdictMark } from '../components/verdict.tsx';
+
+const FACTOR_SHORT: Record<string, string> = {
+  stochVol: 'Stochastic vol',
+  domesticRate: 'Domestic rate',
+  foreignRate: 'Foreign rate',
+};
 import {
   CheckField,
   ExpressionField,
@@ -100,7 +107,7 @@ export function DealScreen() {
     const ac = new AbortController();
     setChecking(true);
     const t = setTimeout(() => {
-      engine.call('deal.check', { deal }, { signal: ac.signal }).then(
+      engine.call('deal.check', { deal, rules: doc.settings.rules }, { signal: ac.signal }).then(
         (r) => {
           if (my !== seq.current) return;
           setReview(r);
@@ -118,7 +125,7 @@ export function DealScreen() {
       clearTimeout(t);
       ac.abort();
     };
-  }, [deal, engine]);
+  }, [deal, engine, doc.settings.rules]);
 
   const update = (f: Mutator): void => {
     const d = structuredClone(deal);
@@ -675,9 +682,35 @@ export function DealScreen() {
               ))}
             </ul>
           )}
+          {review?.rules && (
+            <>
+              <h2>What the study will test</h2>
+              <ul className="rules" data-testid="deal-rules">
+                {review.rules.factors.map((f) => (
+                  <li key={f.factor}>
+                    <VerdictMark verdict={f.status === 'candidate' ? 'undecided' : f.status} />{' '}
+                    <strong>{FACTOR_SHORT[f.factor] ?? f.factor}</strong>:{' '}
+                    {f.status === 'candidate'
+                      ? 'candidate, to be decided by simulation'
+                      : f.status === 'required'
+                        ? 'required by the payoff'
+                        : 'not needed'}{' '}
+                    — {f.reason}
+                  </li>
+                ))}
+              </ul>
+              {review.rules.notes.length > 0 && (
+                <ul className="tight">
+                  {review.rules.notes.map((n, k) => (
+                    <li key={k}>{n}</li>
+                  ))}
+                </ul>
+              )}
+            </>
+          )}
           {review?.analysis && (
             <>
-              <h2>What the rules will read</h2>
+              <h2>What the rules read in the payoff</h2>
               <ul className="tight">
                 {review.analysis.reasons.map((r, k) => (
                   <li key={k}>{r}</li>
