@@ -15,7 +15,11 @@ const recent = require('./lib/recentFiles.cjs');
 const RENDERER_ROOT = path.join(__dirname, '..', 'dist', 'desktop');
 
 protocol.registerSchemesAsPrivileged([
-  { scheme: sec.APP_SCHEME, privileges: { standard: true, secure: true, supportFetchAPI: true } },
+  // standard + secure: an origin of its own (storage, 'self' in the CSP); corsEnabled: module scripts and the module worker load.
+  {
+    scheme: sec.APP_SCHEME,
+    privileges: { standard: true, secure: true, supportFetchAPI: true, corsEnabled: true },
+  },
 ]);
 
 /** @type {BrowserWindow | null} */
