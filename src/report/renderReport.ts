@@ -454,14 +454,35 @@ ${table(
     sec.push(
       `<h3>Parameter and verdict stability across snapshots</h3><div class="wide">${table(
         ['Date', ...s.verdicts.map((v) => esc(v.factor)), ...names.map(esc)],
-        s.results.stability.map((r) => [
-          esc(r.date),
-          ...s.verdicts.map((v) => badge(r.verdicts[v.factor] ?? '—')),
-          ...names.map((n) => {
-            const [p, k] = n.split('.');
-            return fmt(r.params[p!]?.[k!] ?? null, 4);
-          }),
-        ]),
+        [
+          ...s.results.stability.map((r) => [
+            esc(r.date),
+            ...s.verdicts.map((v) => badge(r.verdicts[v.factor] ?? '—')),
+            ...names.map((n) => {
+              const [p, k] = n.split('.');
+              return fmt(r.params[p!]?.[k!] ?? null, 4);
+            }),
+          ]),
+          // Coefficient of variation across the snapshots: sample standard deviation over |mean| (common practice).
+          [
+            '<em>variation (sd / |mean|)</em>',
+            ...s.verdicts.map((v) =>
+              new Set(s.results.stability.map((r) => r.verdicts[v.factor])).size === 1
+                ? 'holds'
+                : '<strong>changes</strong>',
+            ),
+            ...names.map((n) => {
+              const [p, k] = n.split('.');
+              const xs = s.results.stability
+                .map((r) => r.params[p!]?.[k!])
+                .filter((x): x is number => typeof x === 'number');
+              if (xs.length < 2) return '—';
+              const m = xs.reduce((a, b) => a + b, 0) / xs.length;
+              const sd = Math.sqrt(xs.reduce((a, b) => a + (b - m) ** 2, 0) / (xs.length - 1));
+              return m !== 0 ? pct(sd / Math.abs(m), 1) : '—';
+            }),
+          ],
+        ],
       )}</div>`,
     );
   }

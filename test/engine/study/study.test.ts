@@ -123,6 +123,7 @@ describe('European call: closed-form checks of the study', () => {
     expect(Math.abs(d.delta - want), report('Heston − BS Δ', d.delta, want, d.se)).toBeLessThanOrEqual(
       3 * d.se,
     );
+    expect(d.se, 'SE cap: 10 bp of notional').toBeLessThan(1000);
     // τ = 25 bp of notional = 2,500 DOM; the closed-form Δ is far below it, so the rule can only drop or stay undecided;
     // at this path count z·SE + b stays below τ − |Δ|, so the confirmation is a drop.
     expect(Math.abs(want)).toBeLessThan(s.results.tau / 3);
