@@ -132,7 +132,8 @@ export function App(props: { engine: EngineClient }) {
       dirty: doc.dirty,
       title: doc.fileName ?? doc.deal?.name ?? 'Untitled study',
     });
-    if (!doc.dirty) return;
+    // The desktop shell asks in its own close dialog; a page-level prompt there would silently block closing.
+    if (!doc.dirty || platform.kind === 'desktop') return;
     const onBeforeUnload = (e: BeforeUnloadEvent): void => {
       platform.drafts.save(DRAFT_KEY, serializeDraft(docRef.current, Date.now()));
       e.preventDefault();
