@@ -126,6 +126,13 @@ export function App(props: { engine: EngineClient }) {
     return () => clearTimeout(t);
   }, [doc]);
 
+  // Whatever happens next, the latest edits are in the draft when the page goes away.
+  useEffect(() => {
+    const onHide = (): void => platform.drafts.save(DRAFT_KEY, serializeDraft(docRef.current, Date.now()));
+    window.addEventListener('pagehide', onHide);
+    return () => window.removeEventListener('pagehide', onHide);
+  }, []);
+
   // Closing asks when there are unsaved changes.
   useEffect(() => {
     platform.setDocumentState({
