@@ -46,6 +46,13 @@ function ChangeTable(props: { title: string; rows: FieldChange[]; testId?: strin
   );
 }
 
+/** Two numbers that differ only in their last few binary digits (a rounding difference, not a change). */
+function lastDigitsOnly(a: unknown, b: unknown): boolean {
+  if (typeof a !== 'number' || typeof b !== 'number' || a === b || !Number.isFinite(a) || !Number.isFinite(b))
+    return false;
+  return Math.abs(a - b) <= 64 * Number.EPSILON * Math.max(Math.abs(a), Math.abs(b));
+}
+
 export function ReviewScreen() {
   const app = useApp();
   const { doc, task, engine, platform, notify } = app;
@@ -230,6 +237,22 @@ export function ReviewScreen() {
                   {show(task.outcome.difference.rerun)}
                 </div>
               )}
+              {task.outcome.difference &&
+                lastDigitsOnly(task.outcome.difference.saved, task.outcome.difference.rerun) && (
+                  <p data-testid="verify-runtime-note">
+                    The first difference is in the last binary digits (relative{' '}
+                    {num(
+                      Math.abs(
+                        Number(task.outcome.difference.rerun) / Number(task.outcome.difference.saved) - 1,
+                      ),
+                      2,
+                    )}
+                    ). That is the signature of a study made in another JavaScript runtime (a browser, or
+                    another Node version) whose elementary functions such as exp and log round differently; it
+                    is not an edit, and the results agree to about 15 digits. A bit-for-bit check needs the
+                    same runtime.
+                  </p>
+                )}
             </div>
           )}
           {task.kind === 'failed' && task.op === 'verify' && (
