@@ -248,9 +248,9 @@ export function ReviewScreen() {
                       2,
                     )}
                     ). That is the signature of a study made in another JavaScript runtime (a browser, or
-                    another Node version) whose elementary functions such as exp and log round differently; it
-                    is not an edit, and the results agree to about 15 digits. A bit-for-bit check needs the
-                    same runtime.
+                    another Node version) whose elementary functions such as exp and log round differently,
+                    not of an edit{task.outcome.hashOk ? ' (the hash matches)' : ''}. Later results may differ
+                    by more where such differences are amplified; a bit-for-bit check needs the same runtime.
                   </p>
                 )}
             </div>
