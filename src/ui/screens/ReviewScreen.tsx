@@ -11,7 +11,8 @@ import { num } from '../components/format.ts';
 
 function show(v: unknown): string {
   if (v === undefined) return '(absent)';
-  if (typeof v === 'number') return num(v, 8);
+  // Full precision: a verification may differ in the last digit only.
+  if (typeof v === 'number') return Number.isFinite(v) ? String(v).replace('-', '−') : num(v);
   const s = JSON.stringify(v);
   return s.length > 90 ? s.slice(0, 87) + '…' : s;
 }
