@@ -435,7 +435,10 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
 
     // --- step halving (in process, same random numbers on both grids)
     progress(0.05, 'step halving', `${stepPaths} paths on the study grid and on the halved grid`);
-    const sh = await runStepHalving({
+    // With worker threads the in-process check runs while the workers simulate the vega and pricing runs (its
+    // result is used only after them; it is deterministic whatever the interleaving).
+    const overlap = workers > 1;
+    const shPromise = runStepHalving({
       variants,
       deal: compiled,
       eventTimes,
@@ -447,9 +450,13 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       ...(hasExercise
         ? { evaluators: variants.map((v) => makeExercisePathEvaluator(compiled, policies[v.id]!)) }
         : {}),
-      onBatch: (d, t) => progress(0.05 + 0.1 * (d / t), 'step halving'),
+      ...(overlap
+        ? {}
+        : { onBatch: (d: number, t: number) => progress(0.05 + 0.1 * (d / t), 'step halving') }),
     });
-    const shStats = toStats(sh.sums);
+    shPromise.catch(() => undefined); // a failure is reported where the result is awaited
+    if (!overlap) await shPromise;
+    let shStats: ColumnStats | null = null;
     const V = variants.length;
     const stepChange = (w: Record<number, number>): ValueSe => {
       const c: Record<number, number> = {};
@@ -458,7 +465,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         c[Number(i)] = -x;
         f[Number(i) + V] = x;
       }
-      return combination(shStats, { ...c, ...f });
+      return combination(shStats!, { ...c, ...f });
     };
     const looFor = (fi: number) => full ^ (1 << fi);
     // Budget part: the change of Δ on the halved grid beyond two of its own standard errors (what the paired noise
@@ -469,10 +476,6 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
     };
     const stepHalving: Record<string, number> = {};
     const stepHalvingRaw: Record<string, ValueSe> = {};
-    candidates.forEach((f, fi) => {
-      stepHalving[f] = stepBudget({ [full]: 1, [looFor(fi)]: -1 });
-      stepHalvingRaw[f] = stepChange({ [full]: 1, [looFor(fi)]: -1 });
-    });
 
     // --- scenarios of the main run
     const dom = analysis.currency;
@@ -560,6 +563,12 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
     });
     simSeconds += main.seconds;
     warnings.push(...main.warnings.map((w) => w.message));
+    const sh = await shPromise;
+    shStats = toStats(sh.sums);
+    candidates.forEach((f, fi) => {
+      stepHalving[f] = stepBudget({ [full]: 1, [looFor(fi)]: -1 });
+      stepHalvingRaw[f] = stepChange({ [full]: 1, [looFor(fi)]: -1 });
+    });
     const lookStats = main.looks.map(toStats);
     const final = lookStats[lookStats.length - 1]!;
     const K = final.mean.length;
