@@ -1,8 +1,14 @@
 /**
- * European vanillas on one expiry from a characteristic function by the COS method
+ * European vanillas on one expiry from any log-characteristic function by the COS method
  * (F. Fang, C.W. Oosterlee, "A novel pricing method for European options based on Fourier-cosine series
  * expansions", SIAM J. Sci. Comput. 31(2), 2008: eq. (19) for the price, (22)–(23) for χ_k and ψ_k,
  * (29) for the put coefficients U_k; truncation range (49) with cumulants c1, c2).
+ *
+ * Why a second COS pricer beside models/hestonCos.ts: that one is Heston-specific (closed-form cumulants, adaptive
+ * number of terms, Greeks). The calibration needs (a) any characteristic function (Heston, H1-HW, Heston under
+ * shifted rates) behind one `LogCharFn` shape and (b) a truncation range fixed per quote slice from the market, so
+ * the payoff coefficients U_k of every strike are computed once and each residual evaluation of the optimiser only
+ * evaluates the characteristic function. The Heston characteristic function itself is the models layer's.
  */
 
 /**
@@ -38,73 +44,22 @@ export function cumulantsFromLogChf(logChf: LogCharFn): { c1: number; c2: number
   return { c1: (p[1]! - m[1]!) / (2 * h), c2: -(p[0]! + m[0]!) / (h * h) };
 }
 
-/** Call prices (discounted by `df`) for every strike of the slice. */
+/**
+ * Call prices (discounted by `df`) for every strike of the slice, on the range c1 ± width·√c2 from the cumulants of
+ * the characteristic function: a {@link prepareCosSlice} on that range, priced once.
+ */
 export function cosCallPrices(input: CosSliceInput): number[] {
-  const N = input.terms ?? 256;
   const L = input.width ?? 16;
-  const { forward: F, df } = input;
   const { c1, c2 } = cumulantsFromLogChf(input.logChf);
   const sd = Math.sqrt(Math.max(c2, 1e-12));
-  const lo = c1 - L * sd; // a − x, the same for every strike
-  const width = 2 * L * sd; // b − a
-  const w = Math.PI / width;
-  // Re/Im of φ(u_k) e^{i u_k (x − a)}, shared by all strikes (x − a = −lo).
-  const phiRe = new Float64Array(N);
-  const phiIm = new Float64Array(N);
-  const out = new Float64Array(2);
-  // The series stops where |φ| has become negligible (< 1e-16 three times in a row), and where it would grow again
-  // (|φ| > 1, or rising after having fallen): a true characteristic function never exceeds 1, so growth means an
-  // approximate one (e.g. H1-HW with ρ(S,r) < 0, whose Gaussian factor has negative variance) has left the range
-  // where it approximates anything (common practice: truncate the Fourier integral there).
-  let used = N;
-  let prevMag = Infinity;
-  let tiny = 0;
-  for (let k = 0; k < N; k++) {
-    const u = k * w;
-    input.logChf(u, out);
-    const mag = Math.exp(out[0]!);
-    if (k > 0 && (mag > 1 + 1e-9 || (mag > prevMag * (1 + 1e-9) && mag < 0.5))) {
-      used = k;
-      break;
-    }
-    prevMag = mag;
-    const ang = out[1]! - u * lo;
-    phiRe[k] = mag * Math.cos(ang);
-    phiIm[k] = mag * Math.sin(ang);
-    if (mag < 1e-16) {
-      if (++tiny >= 3) {
-        used = k + 1;
-        break;
-      }
-    } else tiny = 0;
-  }
-  const prices: number[] = [];
-  for (const K of input.strikes) {
-    const a = Math.log(F / K) + lo; // truncation start for ln(S_T/K)
-    const ea = Math.exp(a);
-    let sum = 0;
-    for (let k = 0; k < used; k++) {
-      const wk = k * w;
-      let chi: number;
-      let psi: number;
-      if (k === 0) {
-        chi = 1 - ea;
-        psi = -a;
-      } else {
-        const c = Math.cos(wk * a);
-        const s = Math.sin(wk * a);
-        chi = (c - ea - wk * s) / (1 + wk * wk);
-        psi = -s / wk;
-      }
-      const U = (2 / width) * (psi - chi);
-      // Re[φ e^{iu(x−a)}] — imaginary part drops out (eq. 19).
-      const term = phiRe[k]! * U;
-      sum += k === 0 ? 0.5 * term : term;
-    }
-    const put = Math.max(df * K * sum, 0);
-    prices.push(put + df * (F - K));
-  }
-  return prices;
+  return prepareCosSlice({
+    forward: input.forward,
+    df: input.df,
+    strikes: input.strikes,
+    lo: c1 - L * sd, // a − x, the same for every strike
+    width: 2 * L * sd, // b − a
+    terms: input.terms ?? 256,
+  }).callPrices(input.logChf);
 }
 
 /**
@@ -165,7 +120,10 @@ export function prepareCosSlice(o: {
         const u = k * w;
         logChf(u, out);
         const mag = Math.exp(out[0]!);
-        // Same stopping rules as cosCallPrices.
+        // The series stops where |φ| has become negligible (< 1e-16 three times in a row), and where it would grow
+        // again (|φ| > 1, or rising after having fallen): a true characteristic function never exceeds 1, so growth
+        // means an approximate one (e.g. H1-HW with ρ(S,r) < 0, whose Gaussian factor has negative variance) has left
+        // the range where it approximates anything (common practice: truncate the Fourier integral there).
         if (k > 0 && (mag > 1 + 1e-9 || (mag > prevMag * (1 + 1e-9) && mag < 0.5))) break;
         prevMag = mag;
         const re = mag * Math.cos(out[1]! - u * lo);
