@@ -435,9 +435,9 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
 
     // --- step halving (in process, same random numbers on both grids)
     progress(0.05, 'step halving', `${stepPaths} paths on the study grid and on the halved grid`);
-    // With worker threads the in-process check runs while the workers simulate the vega and pricing runs (its
-    // result is used only after them; it is deterministic whatever the interleaving).
-    const overlap = workers > 1;
+    // Run to completion before the worker runs: overlapping it with them starves the workers, whose batches are
+    // dispatched from this thread (measured in bench/study.bench.ts).
+    const overlap = false;
     const shPromise = runStepHalving({
       variants,
       deal: compiled,
