@@ -59,8 +59,11 @@ export class AppPage {
     return app;
   }
 
+  /** Closes the page; any uncaught error the page raised meanwhile fails the test. */
   async close(): Promise<void> {
     await this.context.close();
+    if (this.errors.length > 0)
+      throw new Error(`the page raised uncaught errors: ${this.errors.join(' | ')}`);
   }
 
   async screen(id: 'triage' | 'deal' | 'market' | 'fit' | 'review'): Promise<void> {
