@@ -1,9 +1,18 @@
 /**
- * Vanilla option formulas used by the calibration instruments: Black (lognormal) and Bachelier (normal) on a forward,
- * their vegas, and implied-vol inversion. Prices are undiscounted unless a discount factor is passed.
+ * Vanilla option formulas in the shape the calibration instruments use (an option on a forward with `isCall`,
+ * `expiry` and an optional discount factor): Black (lognormal) and Bachelier (normal) prices, their vegas, and
+ * implied-vol inversion. Prices and implied vols are the models layer's (models/blackScholes.ts, models/bachelier.ts);
+ * this file only adapts the shape and keeps the calibration's conventions: zero or missing vol (or expiry) gives the
+ * discounted intrinsic value, and an implied vol outside the no-arbitrage bounds is NaN rather than an error, so a
+ * fit can step back into range. Prices are undiscounted unless a discount factor is passed.
  */
 
 import { normCdf, normPdf } from '../math/normal.ts';
+import {
+  bachelierImpliedVol as normalImpliedVol,
+  bachelierPrice as normalPrice,
+} from '../models/bachelier.ts';
+import { blackUndiscounted, impliedSdFromUndiscounted } from '../models/blackScholes.ts';
 
 export { normCdf, normPdf };
 
@@ -18,20 +27,16 @@ export interface ForwardOption {
   isCall: boolean;
 }
 
-/** Black (1976) price on a forward: df·[F N(d1) − K N(d2)] for a call; the put by parity. */
+/** Black (1976) price on a forward: df·[F N(d1) − K N(d2)] for a call, df·[K N(−d2) − F N(−d1)] for a put. */
 export function blackPrice(o: ForwardOption & { vol: number }): number {
   const df = o.df ?? 1;
-  const { forward: F, strike: K, expiry: T, vol } = o;
-  const intrinsic = Math.max(o.isCall ? F - K : K - F, 0);
-  const sd = vol * Math.sqrt(T);
-  if (!(sd > 0)) return df * intrinsic;
-  const d1 = Math.log(F / K) / sd + 0.5 * sd;
-  const d2 = d1 - sd;
-  const call = F * normCdf(d1) - K * normCdf(d2);
-  return df * (o.isCall ? call : call - (F - K));
+  const { forward: F, strike: K } = o;
+  const sd = o.vol * Math.sqrt(o.expiry);
+  if (!(sd > 0)) return df * Math.max(o.isCall ? F - K : K - F, 0);
+  return df * blackUndiscounted(o.isCall ? 'call' : 'put', F, K, sd);
 }
 
-/** Black vega dPrice/dvol (per 1.00 of vol). */
+/** Black vega dPrice/dvol (per 1.00 of vol): df·F φ(d1)√T (Black 1976, differentiated; common practice). */
 export function blackVega(o: ForwardOption & { vol: number }): number {
   const df = o.df ?? 1;
   const sd = o.vol * Math.sqrt(o.expiry);
@@ -40,18 +45,23 @@ export function blackVega(o: ForwardOption & { vol: number }): number {
   return df * o.forward * normPdf(d1) * Math.sqrt(o.expiry);
 }
 
-/** Bachelier (1900) normal-model price: df·[(F−K)N(d) + σ√T n(d)], d = (F−K)/(σ√T), call; put by parity. */
+/** Bachelier (1900) normal-model price: df·[(F−K)N(d) + σ√T n(d)], d = (F−K)/(σ√T), call; put with K − F. */
 export function bachelierPrice(o: ForwardOption & { vol: number }): number {
   const df = o.df ?? 1;
   const sd = o.vol * Math.sqrt(o.expiry);
   const m = o.forward - o.strike;
   if (!(sd > 0)) return df * Math.max(o.isCall ? m : -m, 0);
-  const d = m / sd;
-  const call = m * normCdf(d) + sd * normPdf(d);
-  return df * (o.isCall ? call : call - m);
+  return normalPrice({
+    type: o.isCall ? 'call' : 'put',
+    F: o.forward,
+    K: o.strike,
+    T: o.expiry,
+    vol: o.vol,
+    annuity: df,
+  });
 }
 
-/** Bachelier vega dPrice/dσ_N. */
+/** Bachelier vega dPrice/dσ_N = df·√T n(d) (Bachelier 1900, differentiated; common practice). */
 export function bachelierVega(o: ForwardOption & { vol: number }): number {
   const df = o.df ?? 1;
   const sd = o.vol * Math.sqrt(o.expiry);
@@ -60,64 +70,36 @@ export function bachelierVega(o: ForwardOption & { vol: number }): number {
 }
 
 /**
- * Black implied vol by a safeguarded Newton iteration on the out-of-the-money option (bisection fallback);
- * returns NaN when the price lies outside the no-arbitrage bounds. Common practice.
+ * Black implied vol (decimal per √year) of a price on a forward, by the models layer's normalised-price solver
+ * (`impliedSdFromUndiscounted`, after Jäckel 2015). 0 for a price equal to intrinsic; NaN when the price lies
+ * outside the no-arbitrage bounds (intrinsic, F for a call or K for a put, undiscounted).
  */
 export function blackImpliedVol(o: ForwardOption & { price: number }): number {
   const df = o.df ?? 1;
   const F = o.forward;
   const K = o.strike;
-  // Work with the out-of-the-money side (parity), undiscounted.
-  let p = o.price / df;
-  let isCall = o.isCall;
-  if (isCall && K < F) {
-    p = p - (F - K);
-    isCall = false;
-  } else if (!isCall && K > F) {
-    p = p + (F - K);
-    isCall = true;
-  }
-  const upper = isCall ? F : K;
-  if (!(p > 0) || p >= upper) return p === 0 ? 0 : NaN;
-  let lo = 1e-8;
-  let hi = 10;
-  let v = 0.2;
-  for (let it = 0; it < 100; it++) {
-    const q = blackPrice({ forward: F, strike: K, expiry: o.expiry, isCall, vol: v });
-    const diff = q - p;
-    if (Math.abs(diff) < 1e-14 * Math.max(1, p)) return v;
-    if (diff > 0) hi = v;
-    else lo = v;
-    const vega = blackVega({ forward: F, strike: K, expiry: o.expiry, isCall, vol: v });
-    let next = vega > 1e-300 ? v - diff / vega : NaN;
-    if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    if (Math.abs(next - v) < 1e-15) return next;
-    v = next;
-  }
-  return v;
+  const p = o.price / df;
+  const intrinsic = Math.max(o.isCall ? F - K : K - F, 0);
+  const upper = o.isCall ? F : K;
+  if (!(p > intrinsic) || !(p < upper)) return p === intrinsic ? 0 : NaN;
+  return impliedSdFromUndiscounted(o.isCall ? 'call' : 'put', p, F, K) / Math.sqrt(o.expiry);
 }
 
-/** Bachelier implied normal vol by safeguarded Newton (bisection fallback). Common practice. */
+/**
+ * Bachelier implied normal vol (units of F per √year) by the models layer's solver; 0 for a price equal to
+ * intrinsic, NaN below it.
+ */
 export function bachelierImpliedVol(o: ForwardOption & { price: number }): number {
   const df = o.df ?? 1;
   const p = o.price / df;
   const m = o.forward - o.strike;
   const intrinsic = Math.max(o.isCall ? m : -m, 0);
   if (!(p > intrinsic)) return p === intrinsic ? 0 : NaN;
-  let lo = 0;
-  let hi = 1;
-  let v = Math.max(p * Math.sqrt((2 * Math.PI) / o.expiry), 1e-6);
-  for (let it = 0; it < 100; it++) {
-    const q = bachelierPrice({ ...o, df: 1, vol: v });
-    const diff = q - p;
-    if (Math.abs(diff) < 1e-16) return v;
-    if (diff > 0) hi = v;
-    else lo = v;
-    const vega = bachelierVega({ ...o, df: 1, vol: v });
-    let next = vega > 0 ? v - diff / vega : NaN;
-    if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    if (Math.abs(next - v) < 1e-17) return next;
-    v = next;
-  }
-  return v;
+  return normalImpliedVol({
+    type: o.isCall ? 'call' : 'put',
+    F: o.forward,
+    K: o.strike,
+    T: o.expiry,
+    price: p,
+  });
 }
