@@ -8,7 +8,7 @@
  * p = lo + e^{z} (or hi − e^{z}), without bounds p = |p_start|·z; the iteration runs in z (common practice).
  */
 import { issue, type FieldIssue } from '../errors.ts';
-import { choleskyLower, choleskySolve, spdInverse, symmetricEigenvalues } from './smallLinalg.ts';
+import { spdCholesky, spdInverse, spdSolve, symmetricEigen } from '../math/linalg.ts';
 
 /** One named model parameter of a fit. */
 export interface FitParameter {
@@ -226,7 +226,7 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
       }
       iterations++;
       const M = A.map((row, i) => row.map((v, j) => (i === j ? v + mu : v)));
-      const L = choleskyLower(M);
+      const L = spdCholesky(M);
       if (!L) {
         mu *= nu;
         nu *= 2;
@@ -236,7 +236,7 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
         }
         continue;
       }
-      const h = choleskySolve(
+      const h = spdSolve(
         L,
         g.map((x) => -x),
       );
@@ -316,7 +316,8 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
     });
     const scale = free.map((par) => Math.max(Math.abs(params[par.name]!), 1e-8));
     const S = JtJ.map((row, a) => row.map((v, b) => v * scale[a]! * scale[b]!));
-    const ev = symmetricEigenvalues(S);
+    // A non-finite Jacobian has no condition number (the eigen-decomposition rejects it): report it as infinite.
+    const ev = S.every((row) => row.every(Number.isFinite)) ? symmetricEigen(S).values : [NaN];
     const lo = ev[0]!;
     const hi = ev[ev.length - 1]!;
     conditionNumber = lo > 0 ? Math.sqrt(hi / lo) : Infinity;

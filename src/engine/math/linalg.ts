@@ -7,6 +7,9 @@
  *   G. H. Golub, C. F. Van Loan, Matrix Computations, 4th ed. (2013), §8.5 (Algorithms 8.5.1–8.5.3).
  * - Cholesky (outer-product form): Golub & Van Loan (2013), §4.2, Algorithm 4.2.1; a zero pivot is accepted when
  *   the rest of its column is zero too (the matrix is then singular but positive semi-definite).
+ * - Strict Cholesky solve and inverse for the small positive definite normal equations of a least-squares fit
+ *   (Golub & Van Loan 2013, §4.2.5): the factor is `null` as soon as a pivot is not > 0, so a damped optimiser can
+ *   raise its damping instead of catching an error (the PSD-tolerant {@link cholesky} is for correlation matrices).
  * - Nearest correlation matrix: N. J. Higham, "Computing the nearest correlation matrix — a problem from finance",
  *   IMA J. Numer. Anal. 22 (2002) 329–343, Algorithm 3.3 (alternating projections with Dykstra's correction,
  *   in the W-norm with W = diag(w)).
@@ -322,4 +325,55 @@ export function multiplyLowerTranspose(l: number[][]): number[][] {
       out[i]![j] = s;
     }
   return out;
+}
+
+/**
+ * Lower Cholesky factor L (L·Lᵀ = a) of a symmetric positive definite matrix, or `null` when a pivot is not > 0 or
+ * not finite (Golub & Van Loan 2013, §4.2.5). For the small systems of a least-squares fit (n ≤ ~20).
+ */
+export function spdCholesky(a: readonly (readonly number[])[]): number[][] | null {
+  const n = a.length;
+  const L = a.map(() => new Array<number>(n).fill(0));
+  for (let i = 0; i < n; i++)
+    for (let j = 0; j <= i; j++) {
+      let s = a[i]![j]!;
+      for (let k = 0; k < j; k++) s -= L[i]![k]! * L[j]![k]!;
+      if (i === j) {
+        if (!(s > 0) || !Number.isFinite(s)) return null;
+        L[i]![i] = Math.sqrt(s);
+      } else L[i]![j] = s / L[j]![j]!;
+    }
+  return L;
+}
+
+/** Solves L·Lᵀ·x = b by forward and back substitution, L from {@link spdCholesky}. */
+export function spdSolve(L: readonly (readonly number[])[], b: readonly number[]): number[] {
+  const n = L.length;
+  const y = new Array<number>(n).fill(0);
+  for (let i = 0; i < n; i++) {
+    let s = b[i]!;
+    for (let k = 0; k < i; k++) s -= L[i]![k]! * y[k]!;
+    y[i] = s / L[i]![i]!;
+  }
+  const x = new Array<number>(n).fill(0);
+  for (let i = n - 1; i >= 0; i--) {
+    let s = y[i]!;
+    for (let k = i + 1; k < n; k++) s -= L[k]![i]! * x[k]!;
+    x[i] = s / L[i]![i]!;
+  }
+  return x;
+}
+
+/** Inverse of a symmetric positive definite matrix (column by column through {@link spdCholesky}), or `null`. */
+export function spdInverse(a: readonly (readonly number[])[]): number[][] | null {
+  const L = spdCholesky(a);
+  if (!L) return null;
+  const n = a.length;
+  const cols: number[][] = [];
+  for (let j = 0; j < n; j++) {
+    const e = new Array<number>(n).fill(0);
+    e[j] = 1;
+    cols.push(spdSolve(L, e));
+  }
+  return cols.map((_, i) => cols.map((c) => c[i]!));
 }
