@@ -319,6 +319,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
     const base = ladder.variants[0]!;
     const t0 = now();
     const lvWarnings: string[] = [];
+    const lvFit = { rmse: [] as number[], max: 0 };
     const equities = base.spec.equities.map((e) => {
       const q = snap.equities[e.name]!;
       const lv = calibrateLocalVol({
@@ -327,6 +328,10 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         curve: makeCurve(snap.curves[q.currency]!, `market.curves.${q.currency}`),
       });
       lvWarnings.push(...lv.warnings.map((w) => w.message));
+      // Fit of the SVI surface the local vol is read from (vol points → decimal vol).
+      const r = lv.surface.slices.map((x) => x.rmseVolPoints / 100);
+      lvFit.rmse.push(...r);
+      lvFit.max = Math.max(lvFit.max, lv.surface.maxAbsVolPoints / 100);
       return { ...e, dynamics: lv.dynamics };
     });
     lvVariant = {
@@ -343,8 +348,8 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       },
       calibration: {
         characteristicFunction: 'none',
-        rmseVol: 0,
-        maxAbsVolError: 0,
+        rmseVol: Math.sqrt(lvFit.rmse.reduce((t, x) => t + x * x, 0) / Math.max(1, lvFit.rmse.length)),
+        maxAbsVolError: lvFit.max,
         seconds: (now() - t0) / 1000,
         fit: [],
         warnings: lvWarnings,
@@ -379,7 +384,6 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
   const makeExec = opts.makeExecutor ?? (() => studyInProcessExecutor());
   const executor = makeExec(workers);
   let simSeconds = 0;
-  let exerciseSeconds = 0;
   try {
     // --- early exercise: a Longstaff–Schwartz policy per variant on its own regression paths, with the
     // Andersen–Broadie dual bound; the study's runs then price every variant with its policy on the common paths.
@@ -389,7 +393,6 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
     if (hasExercise) {
       const exVariants = [...variants, ...(lvVariant ? [lvVariant.spec] : [])];
       const outer = Math.min(1000, Math.max(64, Math.round(aux / 16)));
-      const t0 = now();
       exVariants.forEach((v, i) => {
         checkAbort();
         progress(0.02 + (0.03 * i) / exVariants.length, 'early exercise', v.label);
@@ -426,8 +429,6 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         policies[`${v.id}/vol+`] = policies[v.id]!;
         policies[`${v.id}/vol-`] = policies[v.id]!;
       }
-      exerciseSeconds = (now() - t0) / 1000;
-      void exerciseSeconds;
       limitations.push(
         `Exercise rights are exercised by a Longstaff–Schwartz policy fitted per variant on ${aux} regression paths (the study's paths price them); the Andersen–Broadie gap (${outer} outer × 64 inner paths) enters each factor's error budget. Hedge ratios and sweeps hold each policy fixed.`,
       );
@@ -830,9 +831,6 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
             mcError: { value: mc - q.market, se: fs.se(qi) },
           });
         });
-        const errs = lvVariant.calibration.fit.map((f) => Math.abs(f.priceError));
-        lvVariant.calibration.maxAbsVolError = 0;
-        void errs;
       }
     }
 
@@ -864,8 +862,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         limitations.push(
           `Not swept: ${skipped.join(', ')} — a variance–rate correlation needs the Euler scheme (QE assumes it is zero).`,
         );
-      pairs.forEach(([pair, range], pi) => {
-        void pi;
+      pairs.forEach(([pair, range]) => {
         const [a, b] = pair.split('|') as [string, string];
         const ia = snap.correlation.names.indexOf(a);
         const ib = snap.correlation.names.indexOf(b);
