@@ -2,19 +2,8 @@ import { describe, expect, it } from 'vitest';
 import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
-import { main, type CliIo } from '../../src/cli/main.ts';
-
-function capture(): CliIo & { outLines: string[]; errLines: string[] } {
-  const outLines: string[] = [];
-  const errLines: string[] = [];
-  return {
-    outLines,
-    errLines,
-    out: (l) => outLines.push(l),
-    err: (l) => errLines.push(l),
-    progress: () => {},
-  };
-}
+import { main } from '../../src/cli/main.ts';
+import { captureIo } from '../helpers/captureIo.ts';
 
 const dir = mkdtempSync(path.join(tmpdir(), 'ft-deal-'));
 const write = (name: string, value: unknown) => {
@@ -25,7 +14,7 @@ const write = (name: string, value: unknown) => {
 
 describe('factor-triage deal', () => {
   it('check prints the analysis of a template and the validation caution, exit 0', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['deal', 'check', 'samples/deals/long-dated-floating-note.json'], io)).toBe(0);
     const text = io.outLines.join('\n');
     expect(text).toMatch(/linear at natural dates/);
@@ -43,7 +32,7 @@ describe('factor-triage deal', () => {
       schedules: { s: { dates: [1] } },
       events: [{ on: 's', pay: { amount: 'max(ALDR - strike, 0)' } }],
     });
-    const io = capture();
+    const io = captureIo();
     expect(await main(['deal', 'check', f], io)).toBe(2);
     const err = io.errLines.join('\n');
     expect(err).toMatch(/deal\.events\[0\]\.pay\.amount, character 12: unknown name strike/);
@@ -52,7 +41,7 @@ describe('factor-triage deal', () => {
   });
 
   it('check --json returns the analysis as data', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['deal', 'check', 'samples/deals/worst-of-quanto.json', '--json'], io)).toBe(0);
     const out = JSON.parse(io.outLines.join('\n')) as {
       ok: boolean;
@@ -63,19 +52,19 @@ describe('factor-triage deal', () => {
   });
 
   it('unreadable JSON names the file and the fix, exit 2', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['deal', 'check', write('broken.json', '{"format": ')], io)).toBe(2);
     expect(io.errLines[0]).toMatch(/broken\.json: not valid JSON .*fix the file/);
   });
 
   it('an unknown subcommand is a usage error', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['deal', 'frob'], io)).toBe(2);
     expect(io.errLines.join('\n')).toMatch(/use check or price/);
   });
 
   it('price calibrates the base model on the demo market and prints value ± SE with the caution', async () => {
-    const io = capture();
+    const io = captureIo();
     const code = await main(
       [
         'deal',

@@ -2,21 +2,10 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { main, type CliIo } from '../../src/cli/main.ts';
+import { main } from '../../src/cli/main.ts';
+import { captureIo } from '../helpers/captureIo.ts';
 import { makeHullWhite } from '../../src/engine/models/index.ts';
 import { flatCurve } from '../../src/engine/market/curve.ts';
-
-function capture(): CliIo & { outLines: string[]; errLines: string[] } {
-  const outLines: string[] = [];
-  const errLines: string[] = [];
-  return {
-    outLines,
-    errLines,
-    out: (l) => outLines.push(l),
-    err: (l) => errLines.push(l),
-    progress: () => {},
-  };
-}
 
 const dir = mkdtempSync(path.join(tmpdir(), 'ft-quote-'));
 function writeJson(name: string, data: unknown): string {
@@ -52,7 +41,7 @@ const small = {
 
 describe('quote command', () => {
   it('prices the instruments in input order as JSON, matching published values', async () => {
-    const io = capture();
+    const io = captureIo();
     const code = await main(['quote', writeJson('small.json', small), '--json'], io);
     expect(code).toBe(0);
     const out = JSON.parse(io.outLines.join('\n'));
@@ -68,7 +57,7 @@ describe('quote command', () => {
   });
 
   it('prints an aligned table with the model-validation caution', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['quote', writeJson('small2.json', small)], io)).toBe(0);
     const lines = io.outLines;
     expect(lines[0]).toMatch(/^ *# +instrument +model +price +implied vol$/);
@@ -80,7 +69,7 @@ describe('quote command', () => {
   });
 
   it('prices the demo sample: every line has a price and the Black–Scholes line repeats its vol', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['quote', 'samples/quotes-demo.json', '--json'], io)).toBe(0);
     const out = JSON.parse(io.outLines.join('\n'));
     expect(out.results.length).toBe(14);
@@ -110,7 +99,7 @@ describe('quote command', () => {
       },
       instruments: [{ kind: 'european', model: 'qx', type: 'call', strike: 105, expiry: 0.5 }],
     };
-    const io = capture();
+    const io = captureIo();
     expect(await main(['quote', writeJson('quanto.json', file), '--json'], io)).toBe(0);
     const out = JSON.parse(io.outLines.join('\n'));
     expect(Math.abs(out.results[0].price - 5.32803391922)).toBeLessThan(1e-10);
@@ -136,7 +125,7 @@ describe('quote command', () => {
       strike: 100,
       expiry: 7,
     }));
-    const io = capture();
+    const io = captureIo();
     const f = { format: 'factor-triage/quotes@1', curves: { DOM: { flat: 0.03 } }, models, instruments };
     expect(await main(['quote', writeJson('term.json', f), '--json'], io)).toBe(0);
     const out = JSON.parse(io.outLines.join('\n'));
@@ -145,20 +134,20 @@ describe('quote command', () => {
       ...f,
       models: { ...models, term: { ...models.term, vol: { volTimes: [1], vols: [0.2, 0.3] } } },
     };
-    const io2 = capture();
+    const io2 = captureIo();
     expect(await main(['quote', writeJson('term-bad.json', bad)], io2)).toBe(2);
     expect(io2.errLines.join('\n')).toMatch(/models\.term\.vol\.volTimes/);
   });
 
   it('reports a missing file in one line with exit code 2', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['quote', path.join(dir, 'nope.json')], io)).toBe(2);
     expect(io.errLines).toHaveLength(1);
     expect(io.errLines[0]).toMatch(/cannot read .*nope\.json: no such file/);
   });
 
   it('reports malformed JSON in one line with exit code 2', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['quote', writeJson('bad.json', '{"format": ')], io)).toBe(2);
     expect(io.errLines).toHaveLength(1);
     expect(io.errLines[0]).toMatch(/is not valid JSON/);
@@ -169,12 +158,12 @@ describe('quote command', () => {
     bad.models.eq.vol = -0.2;
     bad.instruments[1].model = 'missing';
     bad.instruments[0].colour = 'red';
-    const io = capture();
+    const io = captureIo();
     expect(await main(['quote', writeJson('fields.json', bad)], io)).toBe(2);
     const text = io.errLines.join('\n');
     expect(text).toMatch(/models\.eq\.vol/);
     expect(text).toMatch(/instruments\[0\]/);
-    const io2 = capture();
+    const io2 = captureIo();
     const bad2 = {
       ...small,
       models: { ...small.models },
@@ -182,7 +171,7 @@ describe('quote command', () => {
     };
     expect(await main(['quote', writeJson('fields2.json', bad2)], io2)).toBe(2);
     expect(io2.errLines.join('\n')).toMatch(/instruments\[0\]\.model: no model "missing"/);
-    const io3 = capture();
+    const io3 = captureIo();
     expect(await main(['quote', writeJson('fmt.json', { ...small, format: 'something/else@9' })], io3)).toBe(
       2,
     );
@@ -191,7 +180,7 @@ describe('quote command', () => {
 
   it('rejects a european option on a rate model, naming the instrument', async () => {
     const bad = { ...small, instruments: [{ ...small.instruments[0], model: 'hw' }] };
-    const io = capture();
+    const io = captureIo();
     expect(await main(['quote', writeJson('kind.json', bad)], io)).toBe(2);
     expect(io.errLines.join('\n')).toMatch(
       /instruments\[0\]\.model: a european option needs an equity model/,
@@ -199,9 +188,9 @@ describe('quote command', () => {
   });
 
   it('needs exactly one file and rejects unknown options', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['quote'], io)).toBe(2);
-    const io2 = capture();
+    const io2 = captureIo();
     expect(await main(['quote', 'a.json', '--fast'], io2)).toBe(2);
     expect(io2.errLines[0]).toMatch(/unknown option --fast/);
   });

@@ -1,24 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { main, type CliIo } from '../../src/cli/main.ts';
+import { main } from '../../src/cli/main.ts';
+import { captureIo } from '../helpers/captureIo.ts';
 import { bsPrice } from '../../src/engine/models/blackScholes.ts';
-
-function capture(): CliIo & { outLines: string[]; errLines: string[]; fractions: number[] } {
-  const outLines: string[] = [];
-  const errLines: string[] = [];
-  const fractions: number[] = [];
-  return {
-    outLines,
-    errLines,
-    fractions,
-    out: (l) => outLines.push(l),
-    err: (l) => errLines.push(l),
-    progress: (f) => fractions.push(f),
-  };
-}
 
 describe('factor-triage simulate', () => {
   it('prints both prices within 3 standard errors of their closed forms, and the paired difference', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['simulate', '--paths', '40000', '--seed', '5', '--json'], io)).toBe(0);
     const r = JSON.parse(io.outLines.join('\n'));
     // Black–Scholes closed form (common practice) cross-checked with the models layer: S=100, K=100, T=5, r=3%, q=1%, vol=20%.
@@ -41,8 +28,8 @@ describe('factor-triage simulate', () => {
   });
 
   it('gives the same numbers with 2 worker threads as in process', async () => {
-    const a = capture();
-    const b = capture();
+    const a = captureIo();
+    const b = captureIo();
     await main(['simulate', '--paths', '8000', '--json'], a);
     await main(['simulate', '--paths', '8000', '--workers', '2', '--json'], b);
     const ra = JSON.parse(a.outLines.join('\n'));
@@ -51,7 +38,7 @@ describe('factor-triage simulate', () => {
   });
 
   it('prints a table with the caution line', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['simulate', '--paths', '2000'], io)).toBe(0);
     const text = io.outLines.join('\n');
     expect(text).toMatch(/Black-Scholes-Hull-White/);
@@ -60,12 +47,12 @@ describe('factor-triage simulate', () => {
   });
 
   it('rejects a bad option value naming the option and the fix', async () => {
-    const io = capture();
+    const io = captureIo();
     expect(await main(['simulate', '--paths', '0'], io)).toBe(2);
     expect(io.errLines.join('\n')).toMatch(
       /--paths must be a whole number >= 2 \(got "0"\): e\.g\. --paths 100000/,
     );
-    const io2 = capture();
+    const io2 = captureIo();
     expect(await main(['simulate', '--frobnicate'], io2)).toBe(2);
     expect(io2.errLines.join('\n')).toMatch(/--frobnicate is not an option of simulate/);
   });
