@@ -111,6 +111,20 @@ describe('browser build', () => {
       );
       expect(await app.page.$(markSel)).toBeNull();
       await app.shot(shots, 'deal');
+      // The deal as text: text that is not JSON stays with the reason; a deal of the wrong shape keeps the form away.
+      await app.page.click('details.source summary');
+      const src = '[data-path="deal.$source"]';
+      const good = await app.page.inputValue(src);
+      await app.page.fill(src, good.slice(0, -3));
+      expect(await app.page.textContent('details.source [role=alert]')).toMatch(/not valid JSON yet/);
+      expect(await app.page.inputValue(src)).toBe(good.slice(0, -3));
+      await app.page.fill(src, JSON.stringify({ ...JSON.parse(good), events: 'not a list' }));
+      await app.page.waitForSelector('[data-testid=deal-shape]');
+      await app.page.fill(src, good);
+      await app.page.waitForFunction(() =>
+        document.querySelector('[data-testid=deal-status]')?.textContent?.includes('No problems'),
+      );
+      expect(await app.page.$('[data-testid=deal-shape]')).toBeNull();
     } finally {
       await app.close();
     }

@@ -15,6 +15,8 @@ import type { DealReview } from '../../engine/api/index.ts';
 import { errorText, useApp } from '../state/appContext.ts';
 import { DEAL_TEMPLATES } from '../state/samples.ts';
 import { VerdictMark } from '../components/verdict.tsx';
+import { formShapeProblem } from '../state/dealShape.ts';
+import { ScreenBoundary } from '../components/ScreenBoundary.tsx';
 
 const FACTOR_SHORT: Record<string, string> = {
   stochVol: 'Stochastic vol',
@@ -190,7 +192,7 @@ export function DealScreen() {
     ...Object.keys(deal.parameters ?? {}),
     ...Object.keys(deal.state ?? {}),
     ...Object.keys(deal.schedules ?? {}),
-    ...(deal.rates ?? []),
+    ...(Array.isArray(deal.rates) ? deal.rates : []),
   ];
   const schedules = Object.keys(deal.schedules ?? {});
   const shownFields = new Set<string>();
@@ -199,7 +201,8 @@ export function DealScreen() {
     return p;
   };
 
-  const body = (
+  const shapeProblem = formShapeProblem(deal);
+  const body = shapeProblem ? null : (
     <IssueContext.Provider value={byField}>
       <section className="panel">
         <h2>Basics</h2>
@@ -719,7 +722,17 @@ export function DealScreen() {
             </>
           )}
         </aside>
-        <section className="editor">{body}</section>
+        <section className="editor">
+          {shapeProblem ? (
+            <div className="banner banner-error" role="alert" data-testid="deal-shape">
+              The form cannot show this deal: {shapeProblem}. Correct it in the deal file below; nothing has
+              been changed or lost.
+            </div>
+          ) : (
+            <ScreenBoundary name="deal form">{body}</ScreenBoundary>
+          )}
+          <DealSource deal={deal} onApply={(d) => dispatch({ type: 'setDeal', deal: d })} />
+        </section>
       </div>
     </div>
   );
@@ -1027,5 +1040,68 @@ function StateUpdateAdder(props: { ev: EventInput; onAdd(name: string): void }) 
         </button>
       ))}
     </div>
+  );
+}
+
+/**
+ * The deal file as text, for everything the form does not show. Text that is not valid JSON stays in the box
+ * (and in the draft) with the reason beside it; valid text replaces the deal and the form follows.
+ */
+function DealSource(props: { deal: DealInput; onApply(d: DealInput): void }) {
+  const { raw, setRaw } = useContext(RawContext);
+  const key = 'deal.$source';
+  const pretty = useMemo(() => JSON.stringify(props.deal, null, 2), [props.deal]);
+  const text = raw[key] ?? pretty;
+  const id = useId();
+  let problem: string | null = null;
+  if (raw[key] !== undefined) {
+    try {
+      const v = JSON.parse(text) as unknown;
+      if (!v || typeof v !== 'object' || Array.isArray(v)) problem = 'the deal file must be a JSON object';
+    } catch (e) {
+      problem = `not valid JSON yet: ${errorText(e)}`;
+    }
+  }
+  return (
+    <details className="panel source">
+      <summary>Deal file (JSON)</summary>
+      <p className="hint">
+        Edit the whole deal as text. Valid text replaces the deal at once; the checks above then apply to it.
+      </p>
+      <textarea
+        id={id}
+        className="mono"
+        rows={18}
+        spellCheck={false}
+        value={text}
+        aria-invalid={problem !== null}
+        data-path={key}
+        onChange={(e) => {
+          // The text stays as typed while editing; a valid deal is applied at once.
+          const t = e.target.value;
+          setRaw(key, t);
+          try {
+            const v = JSON.parse(t) as unknown;
+            if (v && typeof v === 'object' && !Array.isArray(v)) props.onApply(v as DealInput);
+          } catch {
+            /* not valid yet: the message below says why */
+          }
+        }}
+        onBlur={() => {
+          if (raw[key] === undefined) return;
+          try {
+            const v = JSON.parse(raw[key]!) as unknown;
+            if (v && typeof v === 'object' && !Array.isArray(v)) setRaw(key, null);
+          } catch {
+            /* keep the text the user typed */
+          }
+        }}
+      />
+      {problem && (
+        <div className="msg-error" role="alert">
+          Deal file: {problem}
+        </div>
+      )}
+    </details>
   );
 }
