@@ -131,42 +131,39 @@ function evaluator(p: TestPayoff, i: number, ctx: EvaluatorContext): PathEvaluat
     }
     case 'quantoForward': {
       const k = ctx.indexOf(p.expiry, `${f}.expiry`);
-      return (b) => {
-        const s = need(b.equity[p.equity], `${f}.equity`, 'an equity', p.equity);
-        const n = b.nPaths;
-        const out = new Float64Array(n);
-        const o = k * n;
-        for (let q = 0; q < n; q++) out[q] = s[o + q]! * b.discount[o + q]!;
-        return out;
-      };
+      return (b) => discountedProduct(b, k, need(b.equity[p.equity], `${f}.equity`, 'an equity', p.equity));
     }
     case 'discountedAsset': {
       const k = ctx.indexOf(p.time, `${f}.time`);
       const eq = ctx.variant.equities.find((e) => e.name === p.equity);
       const fxName =
         eq && eq.currency !== dom ? ctx.variant.fx.find((x) => x.foreign === eq.currency)?.name : undefined;
-      return (b) => {
-        const s = need(b.equity[p.equity], `${f}.equity`, 'an equity', p.equity);
-        const x = fxName ? b.fx[fxName]! : undefined;
-        const n = b.nPaths;
-        const out = new Float64Array(n);
-        const o = k * n;
-        for (let q = 0; q < n; q++) out[q] = s[o + q]! * (x ? x[o + q]! : 1) * b.discount[o + q]!;
-        return out;
-      };
+      return (b) =>
+        discountedProduct(
+          b,
+          k,
+          need(b.equity[p.equity], `${f}.equity`, 'an equity', p.equity),
+          fxName ? b.fx[fxName]! : undefined,
+        );
     }
     case 'fxForward': {
       const k = ctx.indexOf(p.expiry, `${f}.expiry`);
-      return (b) => {
-        const x = need(b.fx[p.fx], `${f}.fx`, 'an FX rate', p.fx);
-        const n = b.nPaths;
-        const out = new Float64Array(n);
-        const o = k * n;
-        for (let q = 0; q < n; q++) out[q] = x[o + q]! * b.discount[o + q]!;
-        return out;
-      };
+      return (b) => discountedProduct(b, k, need(b.fx[p.fx], `${f}.fx`, 'an FX rate', p.fx));
     }
   }
+}
+
+/**
+ * a(t_k)·c(t_k)·discount(t_k) on every path (c = 1 when absent): the present value of an asset observed at date
+ * index `k`, read from path arrays laid out as [date][path]. One loop shared by the forward and martingale payoffs.
+ */
+function discountedProduct(b: PathBatch, k: number, a: Float64Array, c?: Float64Array): Float64Array {
+  const n = b.nPaths;
+  const out = new Float64Array(n);
+  const o = k * n;
+  if (c) for (let q = 0; q < n; q++) out[q] = a[o + q]! * c[o + q]! * b.discount[o + q]!;
+  else for (let q = 0; q < n; q++) out[q] = a[o + q]! * b.discount[o + q]!;
+  return out;
 }
 
 /** The built-in factory. */
