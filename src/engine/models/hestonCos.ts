@@ -303,17 +303,26 @@ function typeAt(types: OptionType | OptionType[] | undefined, i: number, where: 
 }
 
 /**
- * Heston European prices of many strikes of one maturity with one characteristic-function pass (COS method).
- * Prices in currency units; accuracy targets `options.tol` (absolute).
+ * What every slice pricer starts with: checked inputs, forward F = S e^{(r−q)T}, discount factor e^{−rT}, the
+ * expansion (truncation range, terms, density coefficients; with their parameter gradients when `withGradient`)
+ * and the prepared cosine series of the density.
  */
-export function hestonCosSlice(input: HestonSliceInput): HestonSliceResult {
+function sliceSetup(input: HestonSliceInput, withGradient: boolean) {
   validateHeston('heston', input);
   const kMax = checkStrikes('heston', input.strikes);
   const F = input.S * Math.exp((input.r - input.q) * input.T);
   const df = Math.exp(-input.r * input.T);
-  const ex = expand(input, F, kMax, input.options ?? {}, false);
+  const ex = expand(input, F, kMax, input.options ?? {}, withGradient);
   const width = ex.b - ex.a;
-  const series = prepare(ex.A, width);
+  return { F, df, ex, width, series: prepare(ex.A, width) };
+}
+
+/**
+ * Heston European prices of many strikes of one maturity with one characteristic-function pass (COS method).
+ * Prices in currency units; accuracy targets `options.tol` (absolute).
+ */
+export function hestonCosSlice(input: HestonSliceInput): HestonSliceResult {
+  const { F, df, ex, width, series } = sliceSetup(input, false);
   const prices: number[] = [];
   for (let i = 0; i < input.strikes.length; i++) {
     const K = input.strikes[i]!;
@@ -387,13 +396,7 @@ export interface HestonSliceGradient extends HestonSliceResult {
  * calibration: analytic derivatives of the characteristic function (see `hestonExponentGradient`). The call and put share the gradient (parity does not depend on the parameters).
  */
 export function hestonCosSliceWithGradient(input: HestonSliceInput): HestonSliceGradient {
-  validateHeston('heston', input);
-  const kMax = checkStrikes('heston', input.strikes);
-  const F = input.S * Math.exp((input.r - input.q) * input.T);
-  const df = Math.exp(-input.r * input.T);
-  const ex = expand(input, F, kMax, input.options ?? {}, true);
-  const width = ex.b - ex.a;
-  const series = prepare(ex.A, width);
+  const { F, df, ex, width, series } = sliceSetup(input, true);
   const gradSeries = ex.grad ? ex.grad.map((g) => prepare(g, width)) : [];
   const prices: number[] = [];
   const gradient: HestonSliceGradient['gradient'] = [];
