@@ -71,6 +71,8 @@ export function applyRules(a: DealAnalysis, settings: RuleSettings = DEFAULT_RUL
     if (exercise) why.push(`exercise rights (${a.exercise.reason})`);
     if (a.equities.length > 1)
       why.push('several equities: the joint distribution is not fixed by the vanillas');
+    if (a.rateDependent.present)
+      why.push('the payoff combines the equity with a rate: the equity vanillas do not span their joint law');
     if (a.compo.present || a.quanto.present)
       why.push('the equity is paid through an FX conversion, which the single-asset vanillas do not span');
     if (why.length === 0 && T > settings.volCandidateMaturity)

@@ -135,6 +135,13 @@ describe('rules on the sample deals (analysed by the deal layer)', () => {
   it('the quanto worst-of notes the quanto drift', () => {
     expect(rulesOf('worst-of-quanto.json').notes.join(' ')).toMatch(/quanto drift/);
   });
+  // DESIGN step 3: a payoff on an equity and a rate together is not spanned by the equity's vanillas.
+  it('the equity–rate best-of makes stochastic vol a candidate and requires stochastic rates', () => {
+    expect(status('equity-rate-best-of.json')).toMatchObject({
+      stochVol: 'candidate',
+      domesticRate: 'required',
+    });
+  });
   it('the cliquet makes stochastic vol a candidate', () => {
     expect(status('cliquet-capped-floored.json').stochVol).toBe('candidate');
   });
