@@ -104,26 +104,10 @@ export function fullModelVanillas(input: FullModelInput): FullModelResult {
   );
   const prices = cv.map((c) => c.mean);
   const priceSe = cv.map((c) => c.se);
-  const vols = input.quotes.map((q, i) =>
-    blackImpliedVol({
-      forward: q.forward,
-      strike: q.strike,
-      expiry: q.expiry,
-      df: q.df,
-      isCall: q.isCall,
-      price: prices[i]!,
-    }),
-  );
+  const vols = input.quotes.map((q, i) => blackImpliedVol({ ...q, price: prices[i]! }));
   const volSe = input.quotes.map((q, i) => {
     const v = Number.isFinite(vols[i]!) ? vols[i]! : q.vol;
-    const vega = blackVega({
-      forward: q.forward,
-      strike: q.strike,
-      expiry: q.expiry,
-      df: q.df,
-      isCall: q.isCall,
-      vol: v,
-    });
+    const vega = blackVega({ ...q, vol: v });
     return priceSe[i]! / Math.max(vega, 1e-12);
   });
   return { prices, priceSe, vols, volSe, paths, seconds: (now() - t0) / 1000 };

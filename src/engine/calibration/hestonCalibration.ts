@@ -241,14 +241,7 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
     if (input.residuals === 'implied-vol')
       return m.map((x, i) => {
         const q = quotes[i]!;
-        const iv = blackImpliedVol({
-          forward: q.forward,
-          strike: q.strike,
-          expiry: q.expiry,
-          df: q.df,
-          isCall: q.isCall,
-          price: x,
-        });
+        const iv = blackImpliedVol({ ...q, price: x });
         // Outside the no-arbitrage bounds: fall back to the first-order error so the fit can move back.
         return Number.isFinite(iv) ? iv - targetVol[i]! : (x - target[i]!) / scale[i]!;
       });
@@ -282,14 +275,7 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
   const model = hestonModelPrices(p, quotes, opts);
   const rows: VanillaFitRow[] = quotes.map((q, i) => {
     const tvol = shift ? q.vol + shift[i]! : q.vol;
-    const mv = blackImpliedVol({
-      forward: q.forward,
-      strike: q.strike,
-      expiry: q.expiry,
-      df: q.df,
-      isCall: q.isCall,
-      price: model[i]!,
-    });
+    const mv = blackImpliedVol({ ...q, price: model[i]! });
     return {
       expiry: q.expiry,
       strike: q.strike,
@@ -361,12 +347,5 @@ function toHeston(r: Record<string, number>): HestonParams {
 function blackPriceOf(q: VolQuote, vol: number): number {
   if (!(vol > 0))
     throw new EngineError('E_SHIFTED_VOL', `shifted target vol for ${q.field} must be > 0 (got ${vol})`);
-  return blackPrice({
-    forward: q.forward,
-    strike: q.strike,
-    expiry: q.expiry,
-    df: q.df,
-    isCall: q.isCall,
-    vol,
-  });
+  return blackPrice({ ...q, vol });
 }

@@ -179,22 +179,8 @@ export function localVolRepricing(input: {
       ctl.get(q.expiry)!,
       input.equity.spot * Math.exp(-input.equity.divYield * q.expiry),
     );
-    const mcVol = blackImpliedVol({
-      forward: q.forward,
-      strike: q.strike,
-      expiry: q.expiry,
-      df: q.df,
-      isCall: q.isCall,
-      price: c.mean,
-    });
-    const vega = blackVega({
-      forward: q.forward,
-      strike: q.strike,
-      expiry: q.expiry,
-      df: q.df,
-      isCall: q.isCall,
-      vol: q.vol,
-    });
+    const mcVol = blackImpliedVol({ ...q, price: c.mean });
+    const vega = blackVega(q);
     const sePoints = (c.se / vega) * 100;
     const errorPoints = (mcVol - q.vol) * 100;
     if (Math.abs(errorPoints) <= 3 * sePoints) within++;
