@@ -26,3 +26,40 @@ describe('renderReport', () => {
     expect(h).not.toContain('<b>x</b>');
   });
 });
+
+describe('renderReport on the bundled demo study', () => {
+  it('shows every section of a full study, the answer first and the caution last', async () => {
+    const { readFileSync } = await import('node:fs');
+    const { parseStudyFile } = await import('../../src/engine/study/index.ts');
+    const s = parseStudyFile(
+      JSON.parse(readFileSync(new URL('../../samples/studies/demo.study.json', import.meta.url), 'utf8')),
+    );
+    const h = renderReport(s);
+    const order = [
+      'Which stochastic factors',
+      '<h2>Deal</h2>',
+      '<h2>Market</h2>',
+      '<h2>Calibration fit</h2>',
+      '<h2>Ladder</h2>',
+      '<h2>Factor impact with confidence intervals</h2>',
+      '<h2>Attribution',
+      '<h2>Local-volatility diagnostic</h2>',
+      '<h2>Hedge ratios</h2>',
+      '<h2>Unquoted correlations</h2>',
+      '<h2>Cost of each factor</h2>',
+      'Parameter and verdict stability',
+      '<h2>Convergence</h2>',
+      '<h2>Reproducibility</h2>',
+      '<h2>Limitations</h2>',
+    ];
+    let at = -1;
+    for (const marker of order) {
+      const i = h.indexOf(marker);
+      expect(i, marker).toBeGreaterThan(at);
+      at = i;
+    }
+    expect(h.lastIndexOf('does not replace the firm')).toBeGreaterThan(at);
+    expect((h.match(/<svg /g) ?? []).length).toBeGreaterThan(3);
+    expect(h).toContain(s.hash);
+  });
+});
