@@ -14,6 +14,23 @@ import { calibrateHeston, type HestonCalibration } from './hestonCalibration.ts'
 import { fullModelVanillas } from './fullModelVanillas.ts';
 import { gridQuotes, type VolQuote } from './volGrid.ts';
 
+/** Settings of the Monte Carlo correction of a Heston refit under rates. */
+export interface MonteCarloRefitSettings {
+  /** Paths per full-model check. */
+  paths: number;
+  seed: string;
+  /**
+   * Tolerance on each |full model − market| implied-vol error, vol points (default 0.25); a quote meets it when its
+   * error exceeds the analytic fit's own residual by at most the tolerance plus two Monte Carlo standard errors,
+   * and only when every Monte Carlo standard error is at most the tolerance (the check can resolve it).
+   */
+  toleranceVolPoints?: number;
+  /** Largest number of Monte Carlo checks (default 3). */
+  maxIterations?: number;
+  /** Largest time step of the full-model paths, years. */
+  maxStep?: number;
+}
+
 export interface HestonRefitInput {
   name: string;
   equity: EquityQuote;
@@ -30,19 +47,7 @@ export interface HestonRefitInput {
   /** Deterministic-rate Heston fit to start from (its parameters seed the H1-HW fit). */
   start?: HestonParams;
   /** Monte Carlo correction; absent: the analytic H1-HW refit only. */
-  monteCarlo?: {
-    paths: number;
-    seed: string;
-    /**
-     * Tolerance on each |full model − market| implied-vol error, vol points (default 0.25); a quote meets it when its
-     * error exceeds the analytic fit's own residual by at most the tolerance plus two Monte Carlo standard errors,
-     * and only when every Monte Carlo standard error is at most the tolerance (the check can resolve it).
-     */
-    toleranceVolPoints?: number;
-    /** Largest number of Monte Carlo checks (default 3). */
-    maxIterations?: number;
-    maxStep?: number;
-  };
+  monteCarlo?: MonteCarloRefitSettings;
   toleranceVolPoints?: number;
 }
 
@@ -87,17 +92,21 @@ export function refitHestonUnderRates(input: HestonRefitInput): HestonRefit {
   const quotes = input.quotes ?? gridQuotes(input.equity, input.curve, field);
   const rates = { hw: input.hw, rhoSR: input.rhoSR };
   const starts = input.start ? [input.start] : undefined;
-  let fit = calibrateHeston({
-    name: input.name,
-    equity: input.equity,
-    curve: input.curve,
-    quotes,
-    weights: input.weights,
-    rates,
-    starts,
-    fixed: input.fixed,
-    toleranceVolPoints: input.toleranceVolPoints,
-  });
+  // Every fit of the refit: the same quotes, weights, rates and fixed parameters; only the starts and targets move.
+  const fitFrom = (from: HestonParams[] | undefined, targetShift?: number[]) =>
+    calibrateHeston({
+      name: input.name,
+      equity: input.equity,
+      curve: input.curve,
+      quotes,
+      weights: input.weights,
+      rates,
+      starts: from,
+      fixed: input.fixed,
+      ...(targetShift ? { targetShift } : {}),
+      toleranceVolPoints: input.toleranceVolPoints,
+    });
+  let fit = fitFrom(starts);
   const warnings: FieldIssue[] = [...fit.warnings];
   const iterations: RefitIteration[] = [];
   const mc = input.monteCarlo;
@@ -181,18 +190,7 @@ export function refitHestonUnderRates(input: HestonRefitInput): HestonRefit {
       const g = res.vols[i]! - fit.rows[i]!.modelVol;
       shift[i] = Number.isFinite(g) && Math.abs(g) > 2 * res.volSe[i]! ? -g : 0;
     });
-    fit = calibrateHeston({
-      name: input.name,
-      equity: input.equity,
-      curve: input.curve,
-      quotes,
-      weights: input.weights,
-      rates,
-      starts: [p],
-      fixed: input.fixed,
-      targetShift: shift,
-      toleranceVolPoints: input.toleranceVolPoints,
-    });
+    fit = fitFrom([p], shift);
   }
   if (status === 'not-met') {
     const last = iterations[iterations.length - 1]!;

@@ -11,7 +11,7 @@ import type { EquityDynamics, EquitySpec, HestonParams, HullWhiteParams } from '
 import { makeCurve } from '../market/curve.ts';
 import { fail, issue, throwIfErrors, type FieldIssue } from '../errors.ts';
 import { calibrateHeston, type HestonCalibration } from './hestonCalibration.ts';
-import { refitHestonUnderRates, type HestonRefit } from './hestonRefit.ts';
+import { refitHestonUnderRates, type HestonRefit, type MonteCarloRefitSettings } from './hestonRefit.ts';
 import { calibrateHullWhite, type HullWhiteCalibration } from './hullWhiteCalibration.ts';
 import {
   bsForwardVols,
@@ -42,13 +42,7 @@ export interface LadderCalibrationRequest {
   instruments?: CalibrationSet;
   /** Heston refit under rates: 'analytic' (H1-HW) or 'monte-carlo' (H1-HW corrected by the full model). */
   refit?: 'analytic' | 'monte-carlo';
-  monteCarlo?: {
-    paths: number;
-    seed: string;
-    toleranceVolPoints?: number;
-    maxIterations?: number;
-    maxStep?: number;
-  };
+  monteCarlo?: MonteCarloRefitSettings;
   /** Hull–White σ: constant (default) or piecewise constant. */
   hwMode?: 'constant' | 'piecewise';
   /** Also build the local-vol diagnostic per equity. */
