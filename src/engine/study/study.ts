@@ -508,7 +508,13 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
     // leave-one-out variants, which the vega tests and the calibration budget need
     const vegaMasks = [...new Set([full, ...candidates.map((_, fi) => full ^ (1 << fi))])];
     let vegaStats: ColumnStats | null = null;
+    // Vega is a difference of two recalibrated variants on the same normals, precise on fewer paths: twice the
+    // auxiliary share (half the paths by default), the first paths of the study.
+    const vegaPaths = Math.min(S.paths, 2 * aux);
     if (vegaLadders) {
+      limitations.push(
+        `Vega runs on the first ${vegaPaths} paths (the recalibrated ±vol variants are paired on them).`,
+      );
       progress(0.16, 'vega', 'recalibrated variants ±vol bump on the same paths');
       const spec: RunSpec = {
         variants: [
@@ -525,12 +531,12 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         grid: { eventTimes, maxStep },
         seed: S.seed,
         batchSize: S.batchSize,
-        maxPaths: S.paths,
+        maxPaths: vegaPaths,
       };
       const r = await runInLooks({
         spec,
         executor,
-        lookPaths: [S.paths],
+        lookPaths: [vegaPaths],
         signal: opts.signal,
         onBatch: (d, t) => progress(0.16 + 0.14 * (d / t), 'vega'),
       });
