@@ -2,19 +2,11 @@ import { describe, expect, it } from 'vitest';
 import { bachelierImpliedVol, bachelierPrice, black76 } from '../../../src/engine/models/index.ts';
 import { integrateAdaptive } from '../../../src/engine/math/quadrature.ts';
 import { normPdf } from '../../../src/engine/math/normal.ts';
-
-function close(label: string, computed: number, expected: number, tol: number): void {
-  const ok = Math.abs(computed - expected) <= tol;
-  if (!ok)
-    throw new Error(
-      `${label}: expected ${expected}, computed ${computed}, |diff| ${Math.abs(computed - expected)} > tol ${tol}`,
-    );
-  expect(ok).toBe(true);
-}
+import { expectClose } from '../../helpers/expectClose.ts';
 
 describe('Bachelier (normal) model', () => {
   it('at the money equals σ√T/√(2π) times the annuity (common practice)', () => {
-    close(
+    expectClose(
       'ATM',
       bachelierPrice({ type: 'call', F: 0.03, K: 0.03, T: 2, vol: 0.008, annuity: 4 }),
       (4 * 0.008 * Math.sqrt(2)) / Math.sqrt(2 * Math.PI),
@@ -26,12 +18,12 @@ describe('Bachelier (normal) model', () => {
     const s = 0.009 * Math.sqrt(3);
     for (const K of [-0.005, 0.01, 0.025, 0.05]) {
       const q = integrateAdaptive((z) => normPdf(z) * Math.max(F + s * z - K, 0), -12, 12, { absTol: 1e-16 });
-      close(`K=${K}`, bachelierPrice({ type: 'call', F, K, T: 3, vol: 0.009 }), q, 1e-13);
+      expectClose(`K=${K}`, bachelierPrice({ type: 'call', F, K, T: 3, vol: 0.009 }), q, 1e-13);
     }
   });
   it('satisfies call − put = A(F − K) for negative rates too (parity, common practice)', () => {
     const a = { F: -0.002, K: 0.001, T: 1.5, vol: 0.006, annuity: 2.5 };
-    close(
+    expectClose(
       'parity',
       bachelierPrice({ ...a, type: 'call' }) - bachelierPrice({ ...a, type: 'put' }),
       2.5 * -0.003,
@@ -41,7 +33,7 @@ describe('Bachelier (normal) model', () => {
   it('is close to Black-76 with σ_N = σ_B·F for small lognormal vol at the money (limit)', () => {
     const b = black76({ type: 'call', F: 100, K: 100, T: 1, df: 1, vol: 0.001 });
     const n = bachelierPrice({ type: 'call', F: 100, K: 100, T: 1, vol: 0.1 });
-    close('small vol', n, b, 1e-8);
+    expectClose('small vol', n, b, 1e-8);
   });
   it('implied normal vol round-trips from 1 bp to 300 bp, strikes ±300 bp around the forward, T 0.1..30', () => {
     let checked = 0;

@@ -9,15 +9,7 @@ import {
   type BsInput,
 } from '../../../src/engine/models/index.ts';
 import { EngineError } from '../../../src/engine/errors.ts';
-
-function close(label: string, computed: number, expected: number, tol: number): void {
-  const ok = Math.abs(computed - expected) <= tol;
-  if (!ok)
-    throw new Error(
-      `${label}: expected ${expected}, computed ${computed}, |diff| ${Math.abs(computed - expected)} > tol ${tol}`,
-    );
-  expect(ok).toBe(true);
-}
+import { expectClose } from '../../helpers/expectClose.ts';
 
 // Each row: inputs, the value, its source. Values re-computed independently in /work/shared/reference/published.md;
 // the 11-digit numbers are those re-computations, the tolerance covers the printed digits of the source.
@@ -111,14 +103,14 @@ const priceCases: { src: string; p: BsInput; value: number; tol: number }[] = [
 describe('Black–Scholes–Merton prices', () => {
   for (const c of priceCases) {
     it(`matches ${c.src}: ${c.p.type} S=${c.p.S} K=${c.p.K}`, () => {
-      close(c.src, bsPrice(c.p), c.value, c.tol);
+      expectClose(c.src, bsPrice(c.p), c.value, c.tol);
     });
   }
 
   it('gives d1 = 0.7693 and d2 = 0.6278 on the Hull example through delta and the call price', () => {
     // Hull, OFOD, BSM chapter worked example (from memory): d1 = 0.769262628106, d2 = 0.627841271869 (re-computed).
     const g = bsGreeks({ type: 'call', S: 42, K: 40, T: 0.5, r: 0.1, q: 0, vol: 0.2 });
-    close('N(d1) = delta', g.delta, 0.7791312909, 2e-9); // N(0.769262628106), common practice (normal cdf)
+    expectClose('N(d1) = delta', g.delta, 0.7791312909, 2e-9); // N(0.769262628106), common practice (normal cdf)
   });
 
   it('satisfies put–call parity C − P = S e^{−qT} − K e^{−rT} (common practice)', () => {
@@ -126,19 +118,19 @@ describe('Black–Scholes–Merton prices', () => {
       for (const K of [50, 100, 180]) {
         const p = { S: 100, K, T: 2, r: 0.03, q: 0.01, vol };
         const lhs = bsPrice({ ...p, type: 'call' }) - bsPrice({ ...p, type: 'put' });
-        close(`parity vol=${vol} K=${K}`, lhs, 100 * Math.exp(-0.02) - K * Math.exp(-0.06), 1e-11);
+        expectClose(`parity vol=${vol} K=${K}`, lhs, 100 * Math.exp(-0.02) - K * Math.exp(-0.06), 1e-11);
       }
   });
 
   it('tends to the discounted intrinsic value of the forward as vol → 0 (limit, common practice)', () => {
     const p = { type: 'call' as const, S: 100, K: 95, T: 1, r: 0.05, q: 0.02 };
     const intrinsic = 100 * Math.exp(-0.02) - 95 * Math.exp(-0.05);
-    close('vol = 0', bsPrice({ ...p, vol: 0 }), intrinsic, 1e-12);
-    close('vol = 1e-9', bsPrice({ ...p, vol: 1e-9 }), intrinsic, 1e-10);
+    expectClose('vol = 0', bsPrice({ ...p, vol: 0 }), intrinsic, 1e-12);
+    expectClose('vol = 1e-9', bsPrice({ ...p, vol: 1e-9 }), intrinsic, 1e-10);
   });
 
   it('prices Garman–Kohlhagen as q = r_f: Haug (1998) pp. 2-8 currency call 0.0291 (from memory; QuantLib test-suite)', () => {
-    close(
+    expectClose(
       'GK',
       garmanKohlhagen({ type: 'call', S: 1.56, K: 1.6, T: 0.5, rDomestic: 0.06, rForeign: 0.08, vol: 0.12 }),
       0.0290992531494,
@@ -148,7 +140,7 @@ describe('Black–Scholes–Merton prices', () => {
 
   it('prices Black-76: Hull, OFOD futures options worked example put 1.12 (from memory)', () => {
     const F = 20;
-    close(
+    expectClose(
       'black76',
       black76({ type: 'put', F, K: 20, T: 120 / 360, df: Math.exp(-0.09 * (120 / 360)), vol: 0.25 }),
       1.11664145656,
@@ -170,38 +162,38 @@ describe('Black–Scholes–Merton prices', () => {
         { t: 5 / 12, amount: 0.5 },
       ],
     });
-    close('escrowed', v, 3.67123320905, 1e-9);
+    expectClose('escrowed', v, 3.67123320905, 1e-9);
   });
 });
 
 describe('Black–Scholes Greeks, Haug (1998) pp. 11-16 (QuantLib test-suite/europeanoption.cpp)', () => {
   it('delta call 0.5946, put −0.3566 and put elasticity −4.8775', () => {
     const p = { S: 105, K: 100, q: 0.1, r: 0.1, T: 0.5, vol: 0.36 };
-    close('delta call', bsGreeks({ ...p, type: 'call' }).delta, 0.59462865973, 1e-10);
+    expectClose('delta call', bsGreeks({ ...p, type: 'call' }).delta, 0.59462865973, 1e-10);
     const put = bsGreeks({ ...p, type: 'put' });
-    close('delta put', put.delta, -0.356600764771, 1e-10);
-    close('elasticity', (put.delta * 105) / put.price, -4.87749854132, 1e-9);
+    expectClose('delta put', put.delta, -0.356600764771, 1e-10);
+    expectClose('elasticity', (put.delta * 105) / put.price, -4.87749854132, 1e-9);
   });
   it('gamma 0.0278 and vega 18.9358 (per 1.00 of vol)', () => {
     const g = bsGreeks({ type: 'call', S: 55, K: 60, q: 0, r: 0.1, T: 0.75, vol: 0.3 });
-    close('gamma', g.gamma, 0.0278211604769, 1e-12);
-    close('vega', g.vega, 18.9357773496, 1e-9);
+    expectClose('gamma', g.gamma, 0.0278211604769, 1e-12);
+    expectClose('vega', g.vega, 18.9357773496, 1e-9);
     const gp = bsGreeks({ type: 'put', S: 55, K: 60, q: 0, r: 0.1, T: 0.75, vol: 0.3 });
-    close('put gamma', gp.gamma, 0.0278211604769, 1e-12);
+    expectClose('put gamma', gp.gamma, 0.0278211604769, 1e-12);
   });
   it('theta −31.1924 per year (−0.0855 per day)', () => {
     const g = bsGreeks({ type: 'put', S: 430, K: 405, q: 0.05, r: 0.07, T: 1 / 12, vol: 0.2 });
-    close('theta', g.theta, -31.1923503043, 1e-8);
-    close('theta/365', g.theta / 365, -0.0854584939843, 1e-11);
+    expectClose('theta', g.theta, -31.1923503043, 1e-8);
+    expectClose('theta/365', g.theta / 365, -0.0854584939843, 1e-11);
   });
   it('rho 38.7325 and dividend rho 42.2254 (per 1.00)', () => {
-    close(
+    expectClose(
       'rho',
       bsGreeks({ type: 'call', S: 72, K: 75, q: 0, r: 0.09, T: 1, vol: 0.19 }).rho,
       38.7325050173,
       1e-8,
     );
-    close(
+    expectClose(
       'dividend rho',
       bsGreeks({ type: 'put', S: 500, K: 490, q: 0.05, r: 0.08, T: 0.25, vol: 0.15 }).dividendRho,
       42.2253633691,
@@ -216,35 +208,35 @@ describe('Black–Scholes Greeks, Haug (1998) pp. 11-16 (QuantLib test-suite/eur
       const fd = (f: (x: number) => BsInput) => (bsPrice(f(h)) - bsPrice(f(-h))) / (2 * h);
       // Central differences carry an O(h²) error: tolerance 1e-7 relative plus 1e-7 absolute.
       const tol = (x: number) => 1e-7 * (1 + Math.abs(x));
-      close(
+      expectClose(
         'delta',
         g.delta,
         fd((e) => ({ ...p, S: p.S + e })),
         tol(g.delta),
       );
-      close(
+      expectClose(
         'vega',
         g.vega,
         fd((e) => ({ ...p, vol: p.vol + e })),
         tol(g.vega),
       );
-      close(
+      expectClose(
         'rho',
         g.rho,
         fd((e) => ({ ...p, r: p.r + e })),
         tol(g.rho),
       );
-      close(
+      expectClose(
         'dividend rho',
         g.dividendRho,
         fd((e) => ({ ...p, q: p.q + e })),
         tol(g.dividendRho),
       );
-      close('theta', g.theta, -fd((e) => ({ ...p, T: p.T + e })), tol(g.theta));
+      expectClose('theta', g.theta, -fd((e) => ({ ...p, T: p.T + e })), tol(g.theta));
       const hs = 1e-2;
       const gfd =
         (bsPrice({ ...p, S: p.S + hs }) - 2 * bsPrice(p) + bsPrice({ ...p, S: p.S - hs })) / (hs * hs);
-      close('gamma', g.gamma, gfd, 1e-6);
+      expectClose('gamma', g.gamma, gfd, 1e-6);
     }
   });
 });
@@ -252,7 +244,7 @@ describe('Black–Scholes Greeks, Haug (1998) pp. 11-16 (QuantLib test-suite/eur
 describe('Black–Scholes implied volatility', () => {
   it('recovers 0.141 from a 4.3-cent 4-month currency call: Hull, OFOD (from memory, low confidence)', () => {
     const iv = bsImpliedVol({ type: 'call', price: 0.043, S: 1.6, K: 1.6, T: 4 / 12, r: 0.08, q: 0.11 });
-    close('GBP call iv', iv, 0.141119384378, 1e-10);
+    expectClose('GBP call iv', iv, 0.141119384378, 1e-10);
   });
 
   it('round-trips over moneyness 0.2..5, T 0.01..30, vol 0.01..2, both types, where the price carries the vol', () => {
@@ -293,7 +285,7 @@ describe('Black–Scholes implied volatility', () => {
     const price = bsPrice({ ...p, vol: 0.05 });
     expect(price).toBeGreaterThan(0);
     expect(price).toBeLessThan(1e-100);
-    close('deep OTM iv', bsImpliedVol({ ...p, price }), 0.05, 1e-10);
+    expectClose('deep OTM iv', bsImpliedVol({ ...p, price }), 0.05, 1e-10);
   });
 
   it('rejects prices below intrinsic or above the upper bound with E_PRICE_ARBITRAGE naming the field', () => {

@@ -2,15 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { bsHullWhite, bsPrice } from '../../../src/engine/models/index.ts';
 import { flatCurve, makeCurve } from '../../../src/engine/market/curve.ts';
 import { integrateAdaptive } from '../../../src/engine/math/quadrature.ts';
-
-function close(label: string, computed: number, expected: number, tol: number): void {
-  const ok = Math.abs(computed - expected) <= tol;
-  if (!ok)
-    throw new Error(
-      `${label}: expected ${expected}, computed ${computed}, |diff| ${Math.abs(computed - expected)} > tol ${tol}`,
-    );
-  expect(ok).toBe(true);
-}
+import { expectClose } from '../../helpers/expectClose.ts';
 
 describe('Black–Scholes with Hull–White rates', () => {
   const curve = flatCurve('DOM', 0.03);
@@ -29,7 +21,7 @@ describe('Black–Scholes with Hull–White rates', () => {
           hw: { a: 0.1, sigma: 0 },
           rho: 0.4,
         });
-        close(
+        expectClose(
           `σ_r = 0 ${type} K=${K}`,
           v.price,
           bsPrice({ type, S: 100, K, T: 4, r: 0.03, q: 0.01, vol: 0.25 }),
@@ -52,7 +44,7 @@ describe('Black–Scholes with Hull–White rates', () => {
       integrateAdaptive(f, 0, 1, { absTol: 1e-15 }) +
       integrateAdaptive(f, 1, 3, { absTol: 1e-15 }) +
       integrateAdaptive(f, 3, 6, { absTol: 1e-15 });
-    close('variance', res.variance, q, 1e-13);
+    expectClose('variance', res.variance, q, 1e-13);
   });
 
   it('increases with equity–rate correlation and matches the zero-correlation variance σ_S²T + σ_r²∫B² (limit)', () => {
@@ -73,7 +65,7 @@ describe('Black–Scholes with Hull–White rates', () => {
     expect(mid.price).toBeLessThan(hi);
     const a = 0.05;
     const intB2 = (10 - (2 * (1 - Math.exp(-a * 10))) / a + (1 - Math.exp(-2 * a * 10)) / (2 * a)) / (a * a);
-    close('ρ = 0 variance', mid.variance, 0.04 * 10 + 1e-4 * intB2, 1e-14);
+    expectClose('ρ = 0 variance', mid.variance, 0.04 * 10 + 1e-4 * intB2, 1e-14);
   });
 
   it('satisfies put–call parity C − P = S e^{−qT} − K P(0,T) on a sloped curve (common practice)', () => {
@@ -90,7 +82,7 @@ describe('Black–Scholes with Hull–White rates', () => {
     };
     const c = bsHullWhite({ ...args, type: 'call' }).price;
     const p = bsHullWhite({ ...args, type: 'put' }).price;
-    close('parity', c - p, 100 * Math.exp(-0.14) - 110 * c2.df(7), 1e-12);
+    expectClose('parity', c - p, 100 * Math.exp(-0.14) - 110 * c2.df(7), 1e-12);
   });
 
   it('rejects bad input naming the field', () => {

@@ -19,15 +19,7 @@ import {
 } from '../../../src/engine/models/index.ts';
 import { Complex } from '../../../src/engine/math/complex.ts';
 import { EngineError } from '../../../src/engine/errors.ts';
-
-function close(label: string, computed: number, expected: number, tol: number): void {
-  const ok = Math.abs(computed - expected) <= tol;
-  if (!ok)
-    throw new Error(
-      `${label}: expected ${expected}, computed ${computed}, |diff| ${Math.abs(computed - expected)} > tol ${tol}`,
-    );
-  expect(ok).toBe(true);
-}
+import { expectClose } from '../../helpers/expectClose.ts';
 
 const P = (v0: number, kappa: number, theta: number, sigma: number, rho: number): HestonParams => ({
   v0,
@@ -124,10 +116,10 @@ const cases: { src: string; m: HestonMarket; type: 'call' | 'put'; K: number; va
 describe('Heston European prices against published values', () => {
   for (const c of cases) {
     it(`COS matches ${c.src}`, () => {
-      close(`COS ${c.src}`, hestonCos({ ...c.m, type: c.type, K: c.K }), c.value, c.tol);
+      expectClose(`COS ${c.src}`, hestonCos({ ...c.m, type: c.type, K: c.K }), c.value, c.tol);
     });
     it(`Lewis integral matches ${c.src}`, () => {
-      close(`Lewis ${c.src}`, hestonLewis({ ...c.m, type: c.type, K: c.K }), c.value, 1e-9);
+      expectClose(`Lewis ${c.src}`, hestonLewis({ ...c.m, type: c.type, K: c.K }), c.value, 1e-9);
     });
   }
 });
@@ -156,7 +148,7 @@ describe('COS against the Lewis integral (second method)', () => {
       let worstBp = 0;
       strikes.forEach((K, i) => {
         const ref = hestonLewis({ ...m, type: 'put', K });
-        close(`${name} put K=${K}`, slicePuts[i]!, ref, 1e-8);
+        expectClose(`${name} put K=${K}`, slicePuts[i]!, ref, 1e-8);
         // implied-vol basis points, where the price carries a measurable vol
         const otm = K < m.S * Math.exp((m.r - m.q) * m.T) ? 'put' : 'call';
         const refOtm = otm === 'put' ? ref : ref + m.S * Math.exp(-m.q * m.T) - K * Math.exp(-m.r * m.T);
@@ -183,7 +175,7 @@ describe('COS against the Lewis integral (second method)', () => {
       types: 'put',
       options: { range: { a: d.a, b: d.b }, N: d.N },
     });
-    d.prices.forEach((p, i) => close(`explicit range ${i}`, e.prices[i]!, p, 1e-13));
+    d.prices.forEach((p, i) => expectClose(`explicit range ${i}`, e.prices[i]!, p, 1e-13));
     expect(() =>
       hestonCosSlice({ ...lewisMkt, strikes: [100], options: { range: { a: 1, b: -1 } } }),
     ).toThrow(/cos\.options\.range/);
@@ -193,7 +185,7 @@ describe('COS against the Lewis integral (second method)', () => {
     const strikes = [70, 85, 100, 115, 130];
     const s = hestonCosSlice({ ...lewisMkt, strikes, types: 'call' });
     strikes.forEach((K, i) =>
-      close(`slice K=${K}`, s.prices[i]!, hestonCos({ ...lewisMkt, type: 'call', K }), 1e-10),
+      expectClose(`slice K=${K}`, s.prices[i]!, hestonCos({ ...lewisMkt, type: 'call', K }), 1e-10),
     );
   });
 });
@@ -220,7 +212,7 @@ describe('COS against Lewis on a seeded random parameter grid (second method)', 
       const strikes = [50, 80, 100, 125, 200];
       const s = hestonCosSlice({ ...m, strikes, types: 'put' });
       strikes.forEach((K, i) =>
-        close(
+        expectClose(
           `T=${T} ${JSON.stringify(params)} K=${K}`,
           s.prices[i]!,
           hestonLewis({ ...m, type: 'put', K }),
@@ -236,7 +228,7 @@ describe('Heston limits and identities', () => {
     for (const K of [60, 100, 150]) {
       const c = hestonLewis({ ...lewisMkt, type: 'call', K });
       const p = hestonLewis({ ...lewisMkt, type: 'put', K });
-      close(`parity K=${K}`, c - p, 100 * Math.exp(-0.02) - K * Math.exp(-0.01), 1e-10);
+      expectClose(`parity K=${K}`, c - p, 100 * Math.exp(-0.02) - K * Math.exp(-0.01), 1e-10);
     }
   });
 
@@ -245,25 +237,25 @@ describe('Heston limits and identities', () => {
     for (const K of [70, 100, 140]) {
       const m: HestonMarket = { S: 100, T: 1.5, r: 0.02, q: 0.01, params: P(theta, 2, theta, 1e-7, -0.5) };
       const bs = bsPrice({ type: 'call', S: 100, K, T: 1.5, r: 0.02, q: 0.01, vol: Math.sqrt(theta) });
-      close(`COS σ→0 K=${K}`, hestonCos({ ...m, type: 'call', K }), bs, 1e-6);
-      close(`Lewis σ→0 K=${K}`, hestonLewis({ ...m, type: 'call', K }), bs, 1e-6);
+      expectClose(`COS σ→0 K=${K}`, hestonCos({ ...m, type: 'call', K }), bs, 1e-6);
+      expectClose(`Lewis σ→0 K=${K}`, hestonLewis({ ...m, type: 'call', K }), bs, 1e-6);
     }
   });
 
   it('has φ(0) = 1 and E[S_T/F] = φ(−i) = 1 (martingale, common practice)', () => {
     const p = lewisMkt.params;
     const one = hestonCharFn(p, 1, Complex.of(0));
-    close('Re φ(0)', one.re, 1, 1e-14);
+    expectClose('Re φ(0)', one.re, 1, 1e-14);
     const mart = hestonCharFn(p, 1, Complex.of(0, -1));
-    close('Re φ(−i)', mart.re, 1, 1e-12);
-    close('Im φ(−i)', mart.im, 0, 1e-12);
+    expectClose('Re φ(−i)', mart.re, 1, 1e-12);
+    expectClose('Im φ(−i)', mart.im, 0, 1e-12);
   });
 
   it('has cumulants c1 = −θT/2 and c2 = θT in the Black–Scholes limit σ → 0, v0 = θ (limit)', () => {
     const c = hestonCumulants(P(0.05, 2, 0.05, 1e-6, -0.5), 2);
-    close('c1', c.c1, -0.05, 1e-12);
-    close('c2', c.c2, 0.1, 1e-7); // c2 is read off numerically (Richardson), about 1e-7 relative: enough for a range
-    close('c4', c.c4, 0, 1e-6);
+    expectClose('c1', c.c1, -0.05, 1e-12);
+    expectClose('c2', c.c2, 0.1, 1e-7); // c2 is read off numerically (Richardson), about 1e-7 relative: enough for a range
+    expectClose('c4', c.c4, 0, 1e-6);
   });
 
   it('inlined characteristic function agrees with the Complex reference on a grid of u', () => {
@@ -278,8 +270,8 @@ describe('Heston limits and identities', () => {
       hestonCharFnGrid(params, T, u, re, im);
       for (let j = 0; j < u.length; j++) {
         const ref = hestonCharFn(params, T, Complex.of(u[j]!));
-        close(`Re φ(${u[j]})`, re[j]!, ref.re, 1e-13);
-        close(`Im φ(${u[j]})`, im[j]!, ref.im, 1e-13);
+        expectClose(`Re φ(${u[j]})`, re[j]!, ref.re, 1e-13);
+        expectClose(`Im φ(${u[j]})`, im[j]!, ref.im, 1e-13);
       }
     }
   });
@@ -296,12 +288,12 @@ describe('Heston Greeks and gradient', () => {
       const up = hestonLewis({ ...m, S: m.S + h, type: 'call', K });
       const mid = hestonLewis({ ...m, type: 'call', K });
       const dn = hestonLewis({ ...m, S: m.S - h, type: 'call', K });
-      close(`delta K=${K}`, g[i]!.delta, (up - dn) / (2 * h), 1e-6);
-      close(`gamma K=${K}`, g[i]!.gamma, (up - 2 * mid + dn) / (h * h), 1e-4);
+      expectClose(`delta K=${K}`, g[i]!.delta, (up - dn) / (2 * h), 1e-6);
+      expectClose(`gamma K=${K}`, g[i]!.gamma, (up - 2 * mid + dn) / (h * h), 1e-4);
     });
     const gp = hestonCosGreeks({ ...m, strikes, types: 'put' });
     gp.forEach((x, i) =>
-      close('put delta = call delta − e^{−qT}', x.delta, g[i]!.delta - Math.exp(-m.q * m.T), 1e-10),
+      expectClose('put delta = call delta − e^{−qT}', x.delta, g[i]!.delta - Math.exp(-m.q * m.T), 1e-10),
     );
   });
 
@@ -323,7 +315,7 @@ describe('Heston Greeks and gradient', () => {
           K,
         });
         const fd = (up - dn) / (2 * h);
-        close(`∂C/∂${name} K=${K}`, res.gradient[i]![name], fd, 1e-6 * (1 + Math.abs(fd)));
+        expectClose(`∂C/∂${name} K=${K}`, res.gradient[i]![name], fd, 1e-6 * (1 + Math.abs(fd)));
       });
     }
   });
@@ -343,8 +335,8 @@ describe('Heston Greeks and gradient', () => {
           const dn = ex({ ...p, [name]: p[name] - h });
           const fdRe = (up.re - dn.re) / (2 * h);
           const fdIm = (up.im - dn.im) / (2 * h);
-          close(`Re ∂E/∂${name} T=${T} u=${uu}`, g[name].re, fdRe, 1e-6 * (1 + Math.abs(fdRe)));
-          close(`Im ∂E/∂${name} T=${T} u=${uu}`, g[name].im, fdIm, 1e-6 * (1 + Math.abs(fdIm)));
+          expectClose(`Re ∂E/∂${name} T=${T} u=${uu}`, g[name].re, fdRe, 1e-6 * (1 + Math.abs(fdRe)));
+          expectClose(`Im ∂E/∂${name} T=${T} u=${uu}`, g[name].im, fdIm, 1e-6 * (1 + Math.abs(fdIm)));
         }
       }
   });
@@ -363,10 +355,10 @@ describe('Heston Greeks and gradient', () => {
       hestonExponentGradientGrid(params, T, u, eRe, eIm, gRe, gIm);
       u.forEach((uu, j) => {
         const g = hestonExponentGradient(params, T, Complex.of(uu));
-        close(`E re u=${uu}`, eRe[j]!, g.E.re, 1e-12 * (1 + Math.abs(g.E.re)));
+        expectClose(`E re u=${uu}`, eRe[j]!, g.E.re, 1e-12 * (1 + Math.abs(g.E.re)));
         (['v0', 'kappa', 'theta', 'sigma', 'rho'] as const).forEach((name, k) => {
-          close(`${name} re u=${uu}`, gRe[k]![j]!, g[name].re, 1e-11 * (1 + Math.abs(g[name].re)));
-          close(`${name} im u=${uu}`, gIm[k]![j]!, g[name].im, 1e-11 * (1 + Math.abs(g[name].im)));
+          expectClose(`${name} re u=${uu}`, gRe[k]![j]!, g[name].re, 1e-11 * (1 + Math.abs(g[name].re)));
+          expectClose(`${name} im u=${uu}`, gIm[k]![j]!, g[name].im, 1e-11 * (1 + Math.abs(g[name].im)));
         });
       });
     }
@@ -379,7 +371,7 @@ describe('Heston Greeks and gradient', () => {
     // With σ → 0 the integrated variance is θT + (v0 − θ)(1 − e^{−κT})/κ, so ∂C/∂v0 = vega_BS/(2σ_BS T)·(1 − e^{−κT})/κ.
     const bs = bsGreeks({ type: 'call', S: 100, K: 100, T: 1, r: 0, q: 0, vol: 0.2 });
     const expected = (bs.vega / (2 * 0.2 * 1)) * ((1 - Math.exp(-3)) / 3);
-    close('vegaV0', g.vegaV0, expected, 1e-4);
+    expectClose('vegaV0', g.vegaV0, expected, 1e-4);
   });
 });
 
