@@ -84,6 +84,11 @@ describe('browser build', () => {
       await app.screen('fit');
       await app.page.waitForSelector('.variant-list');
       await app.shot(shots, 'fit');
+      // Stability across the market dates, recalibrated in the worker.
+      await app.page.click('[data-testid=run-stability]');
+      await app.page.waitForSelector('[data-testid=stability-report]', { timeout: 60_000 });
+      expect(await app.page.textContent('[data-testid=stability-report]')).toMatch(/heston:ALDR/);
+      await app.shot(shots, 'fit-stability', '[data-testid=stability-report]');
       expect(app.errors).toEqual([]);
     } finally {
       await app.close();
@@ -159,6 +164,9 @@ describe('browser build', () => {
     try {
       await app.screen('market');
       await app.shot(shots, 'market');
+      await app.page.click('[data-tab=equities]');
+      await app.page.waitForSelector('.grid-table');
+      await app.shot(shots, 'smile');
       await app.page.click('[data-tab=correlation]');
       await app.page.waitForFunction(() =>
         document.querySelector('[data-testid=psd-status]')?.textContent?.includes('Positive semi-definite'),

@@ -277,8 +277,8 @@ export function ExpressionField(props: {
         <div className="field-msg" id={msgId} role="alert">
           {props.marks.map((m, k) => (
             <div key={k} className="msg-error">
-              at {m.start + 1}
-              {m.end > m.start + 1 ? `–${m.end}` : ''}: {m.message}
+              {/^character \d+/.test(m.message) ? '' : `at character ${m.start + 1}: `}
+              {m.message}
             </div>
           ))}
           {issues.map((i, k) => (
