@@ -13,6 +13,7 @@ import { EngineError, issue, throwIfErrors } from '../errors.ts';
 import { equityForward, gridVolAt } from './volGrid.ts';
 import { hwB, hwSigmaAt, integratePieces } from './hullWhiteBondVol.ts';
 import { bsHullWhite } from '../models/bsHullWhite.ts';
+import { nowMs } from './clock.ts';
 
 /** One vanilla the Black–Scholes term structure must match. */
 export interface VolTarget {
@@ -31,8 +32,6 @@ export interface BsCalibration {
   repricingErrorPoints: number[];
   seconds: number;
 }
-
-const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
 
 /**
  * Targets read from the grid: for each expiry (default the grid's) the vol at `strikes[i]` (a number for all, or one
@@ -67,7 +66,7 @@ function checkTargets(targets: VolTarget[], field: string): void {
 
 /** Piecewise-constant forward vols from implied vols under deterministic rates. */
 export function bsForwardVols(targets: VolTarget[], field = 'bs.targets'): BsCalibration {
-  const t0 = now();
+  const t0 = nowMs();
   checkTargets(targets, field);
   const vols: number[] = [];
   let wPrev = 0;
@@ -102,7 +101,7 @@ export function bsForwardVols(targets: VolTarget[], field = 'bs.targets'): BsCal
     });
     return (Math.sqrt(v / t.expiry) - t.vol) * 100;
   });
-  return { dynamics, targets, repricingErrorPoints: errs, seconds: (now() - t0) / 1000 };
+  return { dynamics, targets, repricingErrorPoints: errs, seconds: (nowMs() - t0) / 1000 };
 }
 
 /**
@@ -119,7 +118,7 @@ export function bsHullWhiteRefit(input: {
   curve: DiscountCurve;
   field?: string;
 }): BsCalibration {
-  const t0 = now();
+  const t0 = nowMs();
   const field = input.field ?? 'bs.targets';
   const { targets, hw, rhoSR } = input;
   checkTargets(targets, field);
@@ -168,5 +167,5 @@ export function bsHullWhiteRefit(input: {
     });
     return (r.effectiveVol - t.vol) * 100;
   });
-  return { dynamics, targets, repricingErrorPoints: errs, seconds: (now() - t0) / 1000 };
+  return { dynamics, targets, repricingErrorPoints: errs, seconds: (nowMs() - t0) / 1000 };
 }

@@ -12,6 +12,7 @@ import { fail } from '../errors.ts';
 import { calibrateHeston, defaultHestonStarts } from './hestonCalibration.ts';
 import { calibrateHullWhite } from './hullWhiteCalibration.ts';
 import { gridQuotes } from './volGrid.ts';
+import { nowMs } from './clock.ts';
 
 export interface ParameterPath {
   model: string;
@@ -34,8 +35,6 @@ export interface StabilityReport {
   seconds: number;
 }
 
-const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
-
 function cv(x: number[]): number {
   const n = x.length;
   if (n < 2) return NaN;
@@ -49,7 +48,7 @@ export function calibrationStability(
   snapshots: MarketSnapshot[],
   options: { equities: string[]; currencies?: string[]; hwMode?: 'constant' | 'piecewise' },
 ): StabilityReport {
-  const t0 = now();
+  const t0 = nowMs();
   if (snapshots.length < 2)
     fail(
       'E_TOO_FEW_SNAPSHOTS',
@@ -172,5 +171,5 @@ export function calibrationStability(
     changes: p.values.slice(1).map((v, i) => v - p.values[i]!),
     coefficientOfVariation: cv(p.values),
   }));
-  return { dates, paths, seconds: (now() - t0) / 1000 };
+  return { dates, paths, seconds: (nowMs() - t0) / 1000 };
 }

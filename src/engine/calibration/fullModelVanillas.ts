@@ -13,6 +13,7 @@ import { batchCount, BUILTIN_TEST_PAYOFFS, type RunSpec } from '../simulation/ru
 import { testPayoffFactory, type TestPayoff } from '../simulation/testPayoffs.ts';
 import { blackImpliedVol, blackVega } from './blackFormulas.ts';
 import type { VolQuote } from './volGrid.ts';
+import { nowMs } from './clock.ts';
 
 export interface FullModelInput {
   name: string;
@@ -42,11 +43,9 @@ export interface FullModelResult {
   seconds: number;
 }
 
-const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
-
 /** Prices every quote (its out-of-the-money side) by Monte Carlo of the full model. */
 export function fullModelVanillas(input: FullModelInput): FullModelResult {
-  const t0 = now();
+  const t0 = nowMs();
   const eqName = input.name;
   const variant: VariantSpec = {
     id: 'calibration-check',
@@ -110,5 +109,5 @@ export function fullModelVanillas(input: FullModelInput): FullModelResult {
     const vega = blackVega({ ...q, vol: v });
     return priceSe[i]! / Math.max(vega, 1e-12);
   });
-  return { prices, priceSe, vols, volSe, paths, seconds: (now() - t0) / 1000 };
+  return { prices, priceSe, vols, volSe, paths, seconds: (nowMs() - t0) / 1000 };
 }

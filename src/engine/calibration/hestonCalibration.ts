@@ -14,6 +14,7 @@ import { h1hwLogChf, sqrtVarianceTable, type H1HwRates } from './h1hwCharFn.ts';
 import { blackImpliedVol, blackPrice } from './blackFormulas.ts';
 import { fitLeastSquares, type FitParameter, type FitReport } from './levenbergMarquardt.ts';
 import { gridArbitrageIssues, gridQuotes, type VolQuote } from './volGrid.ts';
+import { nowMs } from './clock.ts';
 
 export const HESTON_NAMES = ['v0', 'kappa', 'theta', 'sigma', 'rho'] as const;
 
@@ -89,8 +90,6 @@ export interface HestonCalibration {
   warnings: FieldIssue[];
   seconds: number;
 }
-
-const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
 
 /** Groups quotes by expiry so each expiry needs one set of characteristic-function values. */
 function slices(quotes: VolQuote[]): { expiry: number; idx: number[] }[] {
@@ -221,7 +220,7 @@ export function defaultHestonStarts(quotes: VolQuote[]): HestonParams[] {
 
 /** Fits Heston (or H1-HW when `rates` is given) to the quotes; see the module comment for the residuals. */
 export function calibrateHeston(input: HestonCalibrationInput): HestonCalibration {
-  const t0 = now();
+  const t0 = nowMs();
   const field = `equities.${input.name}`;
   if (!input.quotes)
     throwIfErrors(gridArbitrageIssues(input.equity, input.curve, field), 'E_STATIC_ARBITRAGE');
@@ -331,7 +330,7 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
     spread,
     ok: best.fit.converged && rmseVolPoints <= tol,
     warnings,
-    seconds: (now() - t0) / 1000,
+    seconds: (nowMs() - t0) / 1000,
   };
 }
 

@@ -13,6 +13,7 @@ import { issue, type FieldIssue } from '../errors.ts';
 import { calibrateHeston, type HestonCalibration } from './hestonCalibration.ts';
 import { fullModelVanillas } from './fullModelVanillas.ts';
 import { gridQuotes, type VolQuote } from './volGrid.ts';
+import { nowMs } from './clock.ts';
 
 /** Settings of the Monte Carlo correction of a Heston refit under rates. */
 export interface MonteCarloRefitSettings {
@@ -83,11 +84,9 @@ function seWithin(volSe: number[], tol: number): boolean {
   return volSe.every((s) => s * 100 <= tol);
 }
 
-const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
-
 /** Runs the refit described in the module comment. */
 export function refitHestonUnderRates(input: HestonRefitInput): HestonRefit {
-  const t0 = now();
+  const t0 = nowMs();
   const field = `equities.${input.name}`;
   const quotes = input.quotes ?? gridQuotes(input.equity, input.curve, field);
   const rates = { hw: input.hw, rhoSR: input.rhoSR };
@@ -117,7 +116,7 @@ export function refitHestonUnderRates(input: HestonRefitInput): HestonRefit {
       iterations,
       status: 'analytic',
       warnings,
-      seconds: (now() - t0) / 1000,
+      seconds: (nowMs() - t0) / 1000,
     };
   const tol = mc.toleranceVolPoints ?? 0.25;
   const maxIt = mc.maxIterations ?? 3;
@@ -126,7 +125,7 @@ export function refitHestonUnderRates(input: HestonRefitInput): HestonRefit {
   const fitResidual = fit.rows.map((r) => r.volErrorPoints);
   let status: HestonRefit['status'] = 'not-met';
   for (let it = 1; it <= maxIt; it++) {
-    const t1 = now();
+    const t1 = nowMs();
     const p = fit.params;
     const res = fullModelVanillas({
       name: input.name,
@@ -165,7 +164,7 @@ export function refitHestonUnderRates(input: HestonRefitInput): HestonRefit {
       maxGapPoints: Math.max(...gaps.filter(Number.isFinite).map(Math.abs)),
       excessErrorPoints: Math.max(...errs.map((e, i) => Math.abs(e) - Math.abs(fitResidual[i]!))),
       paths: res.paths,
-      seconds: (now() - t1) / 1000,
+      seconds: (nowMs() - t1) / 1000,
     };
     iterations.push(rec);
     if (finiteErrs.length < errs.length)
@@ -205,5 +204,5 @@ export function refitHestonUnderRates(input: HestonRefitInput): HestonRefit {
       ),
     );
   }
-  return { params: fit.params, analytic: fit, iterations, status, warnings, seconds: (now() - t0) / 1000 };
+  return { params: fit.params, analytic: fit, iterations, status, warnings, seconds: (nowMs() - t0) / 1000 };
 }

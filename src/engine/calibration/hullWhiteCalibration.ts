@@ -19,6 +19,7 @@ import {
   blackVega,
 } from './blackFormulas.ts';
 import { fitLeastSquares, type FitParameter, type FitReport } from './levenbergMarquardt.ts';
+import { nowMs } from './clock.ts';
 
 /** One rate-vol quote turned into a calibration instrument. */
 export interface RateQuote {
@@ -83,8 +84,6 @@ export interface HullWhiteCalibration {
   warnings: FieldIssue[];
   seconds: number;
 }
-
-const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
 
 /** Validates the rate-vol block and turns every quote into an instrument with its market price and vega. */
 export function rateQuotes(spec: RateVolSpec, curve: DiscountCurve, field: string): RateQuote[] {
@@ -216,7 +215,7 @@ export function hullWhiteModelPrices(
 
 /** Fits Hull–White to one currency's caplet or swaption vols; see the module comment. */
 export function calibrateHullWhite(input: HullWhiteCalibrationInput): HullWhiteCalibration {
-  const t0 = now();
+  const t0 = nowMs();
   const field = `rateVols.${input.currency}`;
   const quotes = rateQuotes(input.rateVols, input.curve, field);
   const mode = input.mode ?? 'constant';
@@ -327,6 +326,6 @@ export function calibrateHullWhite(input: HullWhiteCalibrationInput): HullWhiteC
     volUnit: unit,
     ok: fit.converged && rmseVol <= tol,
     warnings,
-    seconds: (now() - t0) / 1000,
+    seconds: (nowMs() - t0) / 1000,
   };
 }

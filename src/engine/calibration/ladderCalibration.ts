@@ -23,6 +23,7 @@ import { calibrateLocalVol, type LocalVolCalibration } from './localVolCalibrati
 import { gridArbitrageIssues, gridQuotes, gridVolAt, equityForward, type VolQuote } from './volGrid.ts';
 import { calibrateFx, snapshotCorrelation, type FxCalibration } from './fxCalibration.ts';
 import type { CalibrationSet } from './chooseCalibrationSet.ts';
+import { nowMs } from './clock.ts';
 
 /** Which stochastic factors a variant has. */
 export interface FactorSet {
@@ -90,8 +91,6 @@ export interface LadderCalibration {
   warnings: FieldIssue[];
 }
 
-const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
-
 /** Every subset of the candidate factors, base first. */
 export function factorSubsets(c: FactorSet): FactorSet[] {
   const keys = (['stochVol', 'domRate', 'forRate'] as const).filter((k) => c[k]);
@@ -145,9 +144,9 @@ function memo<T>(sh: Shared, key: string, f: () => T): { value: T; seconds: numb
   // A cached fit still reports its own time: a variant's cost is what calibrating it alone takes.
   const hit = sh.cache.get(key);
   if (hit) return { value: hit.value as T, seconds: hit.seconds };
-  const t0 = now();
+  const t0 = nowMs();
   const value = f();
-  const seconds = (now() - t0) / 1000;
+  const seconds = (nowMs() - t0) / 1000;
   sh.cache.set(key, { value, seconds });
   return { value, seconds };
 }
@@ -362,7 +361,7 @@ export function calibrateVariant(
 
 /** Calibrates every variant of the ladder on one snapshot (fits shared between variants are done once). */
 export function calibrateLadder(snapshot: MarketSnapshot, req: LadderCalibrationRequest): LadderCalibration {
-  const t0 = now();
+  const t0 = nowMs();
   const sh = prepare(snapshot, req);
   const variants = factorSubsets(req.factors).map((f) => calibrateWith(sh, f));
   const localVol: Record<string, LocalVolCalibration> = {};
@@ -396,7 +395,7 @@ export function calibrateLadder(snapshot: MarketSnapshot, req: LadderCalibration
     hullWhite: sh.hw,
     localVol,
     fx,
-    seconds: (now() - t0) / 1000,
+    seconds: (nowMs() - t0) / 1000,
     warnings,
   };
 }

@@ -9,6 +9,7 @@
  */
 import { issue, type FieldIssue } from '../errors.ts';
 import { spdCholesky, spdInverse, spdSolve, symmetricEigen } from '../math/linalg.ts';
+import { nowMs } from './clock.ts';
 
 /** One named model parameter of a fit. */
 export interface FitParameter {
@@ -80,8 +81,6 @@ export interface FitReport {
   warnings: FieldIssue[];
 }
 
-const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
-
 interface Transform {
   toP(z: number): number;
   toZ(p: number): number;
@@ -124,7 +123,7 @@ function transformFor(par: FitParameter): Transform {
 
 /** Fits the free parameters of `problem` and returns a full report (never throws for a poor fit: see `converged`). */
 export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): FitReport {
-  const t0 = now();
+  const t0 = nowMs();
   const maxEval = options.maxEvaluations ?? 400;
   const eps1 = options.gradientTol ?? 1e-10;
   const eps2 = options.stepTol ?? 1e-10;
@@ -368,7 +367,7 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
     rmse,
     evaluations,
     iterations,
-    seconds: (now() - t0) / 1000,
+    seconds: (nowMs() - t0) / 1000,
     stopReason,
     converged,
     constraints,

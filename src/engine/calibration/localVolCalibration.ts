@@ -18,6 +18,7 @@ import { controlVariate, emptySums, mergeSums } from '../simulation/momentSums.t
 import { batchCount, BUILTIN_TEST_PAYOFFS, type RunSpec } from '../simulation/runSpec.ts';
 import { testPayoffFactory, type TestPayoff } from '../simulation/testPayoffs.ts';
 import { blackImpliedVol, blackVega } from './blackFormulas.ts';
+import { nowMs } from './clock.ts';
 
 export type LocalVolDynamics = Extract<EquityDynamics, { kind: 'localvol' }>;
 
@@ -31,8 +32,6 @@ export interface LocalVolCalibration {
   warnings: FieldIssue[];
   seconds: number;
 }
-
-const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
 
 /** Dupire local vol at (T, k) from the SVI surface, with the floor `minVol` where the formula breaks down. */
 export function dupireLocalVol(
@@ -63,7 +62,7 @@ export function calibrateLocalVol(input: {
   /** Log-moneyness nodes (default −1.2 … 0.8 in steps of 0.025). */
   logK?: number[];
 }): LocalVolCalibration {
-  const t0 = now();
+  const t0 = nowMs();
   const field = `equities.${input.name}`;
   const surface = fitSviSurface(input.equity, input.curve, field);
   const E = input.equity.vols.expiries;
@@ -100,7 +99,7 @@ export function calibrateLocalVol(input: {
     flooredCells: floored,
     characteristicFunction: 'none',
     warnings,
-    seconds: (now() - t0) / 1000,
+    seconds: (nowMs() - t0) / 1000,
   };
 }
 
@@ -128,7 +127,7 @@ export function localVolRepricing(input: {
   within3Se: number;
   seconds: number;
 } {
-  const t0 = now();
+  const t0 = nowMs();
   const quotes = input.quotes ?? gridQuotes(input.equity, input.curve, `equities.${input.name}`);
   const variant: VariantSpec = {
     id: 'localvol-check',
@@ -186,5 +185,5 @@ export function localVolRepricing(input: {
     if (Math.abs(errorPoints) <= 3 * sePoints) within++;
     return { expiry: q.expiry, strike: q.strike, marketVol: q.vol, mcVol, errorPoints, sePoints };
   });
-  return { rows, within3Se: within, seconds: (now() - t0) / 1000 };
+  return { rows, within3Se: within, seconds: (nowMs() - t0) / 1000 };
 }
