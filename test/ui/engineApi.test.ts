@@ -359,3 +359,17 @@ describe('deal review through the protocol', () => {
     expect(r.rules?.factors.map((f) => f.factor).sort()).toEqual(['domesticRate', 'foreignRate', 'stochVol']);
   });
 });
+
+describe('request shapes', () => {
+  it('a request with a missing or mistyped argument is refused with E_BAD_REQUEST naming it', async () => {
+    const { client } = pair(engineHandlers);
+    const send = client.call as unknown as (m: string, a: unknown) => Promise<unknown>;
+    const e1 = await rejection(send('deal.checkExpression', { text: 'max(1, 2)' }));
+    expect(isApiError(e1) && e1.code).toBe(API_ERROR_CODES.badRequest);
+    expect(isApiError(e1) && e1.issues[0]!.field).toBe('deal.checkExpression.context');
+    const e2 = await rejection(send('market.checkCorrelation', { names: 'eq:ALDR', matrix: [[1]] }));
+    expect(isApiError(e2) && e2.message).toMatch(/names must be a list/);
+    const e3 = await rejection(send('study.open', 'not an object'));
+    expect(isApiError(e3) && e3.code).toBe(API_ERROR_CODES.badRequest);
+  });
+});

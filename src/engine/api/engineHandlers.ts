@@ -16,6 +16,7 @@ import { applyRules, DEFAULT_RULE_SETTINGS, type RuleSettings } from '../study/r
 import { runStudy } from '../study/study.ts';
 import { verifyStudy } from '../study/verify.ts';
 import { calibrationStability } from '../calibration/calibrationStability.ts';
+import { checkArgs } from './requestShape.ts';
 import {
   PROTOCOL_VERSION,
   type CorrelationCheck,
@@ -95,21 +96,42 @@ export const engineHandlers: Omit<EngineHandlers, 'report.render'> & Partial<Eng
     protocol: PROTOCOL_VERSION,
     methods: Object.keys(engineHandlers) as EngineMethod[],
   }),
-  'deal.check': ({ deal, rules }) => dealCheck(deal, rules),
-  'market.check': ({ snapshot }) => marketCheck(snapshot),
-  'deal.checkExpression': ({ text, context }) => {
-    const r = checkExpression(text, context);
+  'deal.check': (a) => {
+    checkArgs('deal.check', a, { deal: 'any', rules: 'object?' });
+    return dealCheck(a.deal, a.rules);
+  },
+  'market.check': (a) => {
+    checkArgs('market.check', a, { snapshot: 'any' });
+    return marketCheck(a.snapshot);
+  },
+  'deal.checkExpression': (a) => {
+    checkArgs('deal.checkExpression', a, { text: 'string', context: 'object' });
+    const r = checkExpression(a.text, a.context);
     return { errors: r.errors };
   },
-  'market.checkCorrelation': ({ names, matrix }) => correlationCheck(names, matrix),
-  'calibration.stability': ({ snapshots, equities, currencies }) =>
-    calibrationStability(snapshots, { equities, currencies }),
-  'study.open': ({ text }) => openStudy(text),
-  'study.diff': ({ a, b }) => diffStudies(a, b),
-  'study.run': ({ input }, ctx) =>
-    runStudy(input, { signal: ctx.signal, onProgress: (p) => ctx.progress(p), workers: 1 }),
-  'study.verify': async ({ study }, ctx) => {
-    const r = await verifyStudy(study, {
+  'market.checkCorrelation': (a) => {
+    checkArgs('market.checkCorrelation', a, { names: 'array', matrix: 'array' });
+    return correlationCheck(a.names, a.matrix);
+  },
+  'calibration.stability': (a) => {
+    checkArgs('calibration.stability', a, { snapshots: 'array', equities: 'array', currencies: 'array' });
+    return calibrationStability(a.snapshots, { equities: a.equities, currencies: a.currencies });
+  },
+  'study.open': (a) => {
+    checkArgs('study.open', a, { text: 'string' });
+    return openStudy(a.text);
+  },
+  'study.diff': (a) => {
+    checkArgs('study.diff', a, { a: 'object', b: 'object' });
+    return diffStudies(a.a, a.b);
+  },
+  'study.run': (a, ctx) => {
+    checkArgs('study.run', a, { input: 'object' });
+    return runStudy(a.input, { signal: ctx.signal, onProgress: (p) => ctx.progress(p), workers: 1 });
+  },
+  'study.verify': async (a, ctx) => {
+    checkArgs('study.verify', a, { study: 'object' });
+    const r = await verifyStudy(a.study, {
       signal: ctx.signal,
       onProgress: (p) => ctx.progress(p),
       workers: 1,
