@@ -88,6 +88,11 @@ export function App(props: { engine: EngineClient }) {
 
   const openStudyText = useCallback(
     async (name: string, text: string, handle: string | null): Promise<boolean> => {
+      if (
+        docRef.current.dirty &&
+        !window.confirm(`Open ${name}? It replaces the inputs and results you have not saved.`)
+      )
+        return false;
       try {
         const { study, hash } = await engine.call('study.open', { text });
         dispatch({ type: 'studyOpened', study, fileName: name, handle });
