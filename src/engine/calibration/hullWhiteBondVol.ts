@@ -5,11 +5,11 @@
  */
 import type { HullWhiteParams } from '../simulation/types.ts';
 import { gaussLegendre } from '../math/quadrature.ts';
+import { hwB as hwTau } from '../simulation/hullWhiteTerms.ts';
 
-/** B(t,T) = (1 − e^{−a(T−t)})/a (years); the a → 0 limit is T − t. */
+/** B(t,T) = (1 − e^{−a(T−t)})/a (years); the a → 0 limit is T − t (the simulation layer's B(τ) at τ = T − t). */
 export function hwB(a: number, t: number, T: number): number {
-  const tau = T - t;
-  return Math.abs(a) < 1e-10 ? tau : -Math.expm1(-a * tau) / a;
+  return hwTau(a, T - t);
 }
 
 /** σ(u) of a piecewise-constant HW vol: sigma[i] on (sigmaTimes[i−1], sigmaTimes[i]], flat after the last. */
