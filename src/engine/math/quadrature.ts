@@ -22,6 +22,18 @@ export interface GaussRule {
 // change what another caller sees.
 const ruleMemo = new Map<number, GaussRule>();
 
+/** [P_n(x), P_{n−1}(x)] by the three-term recurrence (n+1)P_{n+1} = (2n+1)xP_n − nP_{n−1}, P_0 = 1, P_1 = x (n ≥ 1). */
+function legendrePair(n: number, x: number): [number, number] {
+  let p0 = 1;
+  let p1 = x;
+  for (let k = 2; k <= n; k++) {
+    const p2 = ((2 * k - 1) * x * p1 - (k - 1) * p0) / k;
+    p0 = p1;
+    p1 = p2;
+  }
+  return [p1, p0];
+}
+
 function computeGaussLegendre(n: number): GaussRule {
   const nodes = new Float64Array(n);
   const weights = new Float64Array(n);
@@ -31,17 +43,7 @@ function computeGaussLegendre(n: number): GaussRule {
     let x = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
     let dp = 0;
     for (let iter = 0; iter < 100; iter++) {
-      let p0 = 1;
-      let p1 = x;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * x * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      if (n === 1) {
-        p1 = x;
-        p0 = 1;
-      }
+      const [p1, p0] = legendrePair(n, x);
       // P_n'(x) = n (x P_n − P_{n−1}) / (x² − 1)
       dp = (n * (x * p1 - p0)) / (x * x - 1);
       const dx = p1 / dp;
@@ -49,13 +51,7 @@ function computeGaussLegendre(n: number): GaussRule {
       if (Math.abs(dx) <= 1e-16 * Math.max(1, Math.abs(x))) break;
     }
     // Re-evaluate the derivative at the converged node.
-    let p0 = 1;
-    let p1 = x;
-    for (let k = 2; k <= n; k++) {
-      const p2 = ((2 * k - 1) * x * p1 - (k - 1) * p0) / k;
-      p0 = p1;
-      p1 = p2;
-    }
+    const [p1, p0] = legendrePair(n, x);
     dp = n === 1 ? 1 : (n * (x * p1 - p0)) / (x * x - 1);
     const w = 2 / ((1 - x * x) * dp * dp);
     nodes[i] = -x;
