@@ -22,6 +22,27 @@ function expectRel(label: string, computed: number, expected: number, tol: numbe
   expect(err).toBeLessThanOrEqual(tol);
 }
 
+/**
+ * Round trip Φ(inv(p)) = p over p = 10^k for k = −300 (0.01) −1, then p = 0.001 (0.001) 0.999, then 1 − 10^k for
+ * k = −16 .. −1, judged on the small tail (p near 1 by 1 − p). Throws at the first p whose relative error exceeds
+ * tol(x); returns the worst error / tolerance ratio.
+ */
+function worstRoundTrip(inv: (p: number) => number, tol: (x: number) => number): number {
+  const ps: number[] = [];
+  for (let k = -300; k <= -1; k += 0.01) ps.push(10 ** k);
+  for (let i = 1; i < 1000; i++) ps.push(i / 1000);
+  for (let k = -16; k <= -1; k++) ps.push(1 - 10 ** k);
+  let worstScaled = 0;
+  for (const p of ps) {
+    const x = inv(p);
+    const t = tol(x);
+    const err = p < 0.5 ? relErr(normCdf(x), p) : relErr(normCdfUpper(x), 1 - p);
+    if (!(err <= t)) throw new Error(`p=${p}: x=${x}, rel err ${err} > tol ${t}`);
+    worstScaled = Math.max(worstScaled, err / t);
+  }
+  return worstScaled;
+}
+
 describe('normCdf', () => {
   // Abramowitz & Stegun (1964), Handbook of Mathematical Functions, Table 26.1 (P(x), 15 decimals). from memory
   const table: [number, number][] = [
@@ -117,20 +138,7 @@ describe('normInv', () => {
   // A relative error ε in x moves Φ(x) by about x²ε relatively, so the tolerance is (4 + 2x²)·eps.
   // Worst found: 1.3e-13 relative at p ≈ 1.5e-299 (x ≈ −37, where x²·eps ≈ 3e-13); 9.6e-16 on the central grid.
   it('inverts Φ over p = 1e-300 ... 1 − 1e-16 within (4 + 2x²) ulp', () => {
-    const ps: number[] = [];
-    for (let k = -300; k <= -1; k += 0.01) ps.push(10 ** k);
-    for (let i = 1; i < 1000; i++) ps.push(i / 1000);
-    for (let k = -16; k <= -1; k++) ps.push(1 - 10 ** k);
-    let worstScaled = 0;
-    for (const p of ps) {
-      const x = normInv(p);
-      const tol = (4 + 2 * x * x) * EPS;
-      // Compare on the small tail so that p near 1 is judged by 1 − p.
-      const err = p < 0.5 ? relErr(normCdf(x), p) : relErr(normCdfUpper(x), 1 - p);
-      if (!(err <= tol)) throw new Error(`p=${p}: x=${x}, rel err ${err} > tol ${tol}`);
-      worstScaled = Math.max(worstScaled, err / tol);
-    }
-    expect(worstScaled).toBeLessThanOrEqual(1);
+    expect(worstRoundTrip(normInv, (x) => (4 + 2 * x * x) * EPS)).toBeLessThanOrEqual(1);
   });
 
   it('is antisymmetric: normInv(1 − p) = −normInv(p) where 1 − p is exact', () => {
@@ -158,19 +166,7 @@ describe('normInvFast', () => {
   // (Wichura 1988, AS 241, PPND16), i.e. a few ulp of Φ(x) scaled by x²: tolerance (4 + 4x²)·eps.
   // Worst found: 3.1·(1 + x²) ulp at p ≈ 2.3e-174.
   it('inverts Φ over p = 1e-300 ... 1 − 1e-16 within (4 + 4x²) ulp', () => {
-    const ps: number[] = [];
-    for (let k = -300; k <= -1; k += 0.01) ps.push(10 ** k);
-    for (let i = 1; i < 1000; i++) ps.push(i / 1000);
-    for (let k = -16; k <= -1; k++) ps.push(1 - 10 ** k);
-    let worstScaled = 0;
-    for (const p of ps) {
-      const x = normInvFast(p);
-      const tol = (4 + 4 * x * x) * EPS;
-      const err = p < 0.5 ? relErr(normCdf(x), p) : relErr(normCdfUpper(x), 1 - p);
-      if (!(err <= tol)) throw new Error(`p=${p}: x=${x}, rel err ${err} > tol ${tol}`);
-      worstScaled = Math.max(worstScaled, err / tol);
-    }
-    expect(worstScaled).toBeLessThanOrEqual(1);
+    expect(worstRoundTrip(normInvFast, (x) => (4 + 4 * x * x) * EPS)).toBeLessThanOrEqual(1);
   });
 
   it('is the starting point normInv refines: both agree to 1e-14 relative', () => {
