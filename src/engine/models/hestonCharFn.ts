@@ -30,25 +30,24 @@ export interface HestonExponent {
   D: Complex;
 }
 
-/** The exponent terms C(u, T) and D(u, T) for complex u (reference implementation on `Complex`). */
-export function hestonExponent(params: HestonParams, T: number, u: Complex): HestonExponent {
+/** The intermediate terms of the little-trap exponent at complex u, shared by the exponent and its gradient. */
+function exponentTerms(params: HestonParams, T: number, u: Complex) {
   const { kappa, theta, sigma, rho } = params;
+  const s2 = sigma * sigma;
   const iu = Complex.I.mul(u);
   const xi = Complex.of(kappa).sub(iu.scale(rho * sigma));
   const q = iu.add(u.mul(u)); // iu + u²
-  const d = xi
-    .mul(xi)
-    .add(q.scale(sigma * sigma))
-    .sqrt();
-  const xiPlusD = xi.add(d);
-  const xiMinusDOverS2 = q.neg().div(xiPlusD); // (ξ − d)/σ²
-  const g = xiMinusDOverS2.scale(sigma * sigma).div(xiPlusD); // g₂ = (ξ − d)/(ξ + d)
+  const d = xi.mul(xi).add(q.scale(s2)).sqrt();
+  const p = xi.add(d); // ξ + d
+  const m = q.neg().div(p); // (ξ − d)/σ²
+  const g = m.scale(s2).div(p); // g₂ = (ξ − d)/(ξ + d)
   const e = d.scale(-T).exp();
   const oneMinusE = Complex.ONE.sub(e);
   const oneMinusGE = Complex.ONE.sub(g.mul(e));
-  const D = xiMinusDOverS2.mul(oneMinusE).div(oneMinusGE);
+  const oneMinusG = Complex.ONE.sub(g);
+  const D = m.mul(oneMinusE).div(oneMinusGE);
   // ln((1 − g e)/(1 − g)) = log1p(w), w = g(1 − e)/(1 − g)
-  const w = g.mul(oneMinusE).div(Complex.ONE.sub(g));
+  const w = g.mul(oneMinusE).div(oneMinusG);
   const L =
     w.abs() < 1e-5
       ? w.sub(w.mul(w).scale(0.5)).add(
@@ -59,7 +58,14 @@ export function hestonExponent(params: HestonParams, T: number, u: Complex): Hes
         )
       : w.addReal(1).log();
   // κθ/σ² [(ξ − d)T − 2L] = κθ[(ξ − d)/σ² T] − 2κθ/σ² L; the second term is O(1) as σ → 0 because L = O(σ²).
-  const C = xiMinusDOverS2.scale(kappa * theta * T).sub(L.scale((2 * kappa * theta) / (sigma * sigma)));
+  const kt = kappa * theta;
+  const C = m.scale(kt * T).sub(L.scale((2 * kt) / s2));
+  return { s2, iu, xi, q, d, p, m, g, e, oneMinusE, oneMinusGE, oneMinusG, D, w, L, kt, C };
+}
+
+/** The exponent terms C(u, T) and D(u, T) for complex u (reference implementation on `Complex`). */
+export function hestonExponent(params: HestonParams, T: number, u: Complex): HestonExponent {
+  const { C, D } = exponentTerms(params, T, u);
   return { C, D };
 }
 
@@ -222,32 +228,11 @@ export interface HestonExponentGradient {
  */
 export function hestonExponentGradient(params: HestonParams, T: number, u: Complex): HestonExponentGradient {
   const { v0, kappa, theta, sigma, rho } = params;
-  const one = Complex.ONE;
-  const iu = Complex.I.mul(u);
-  const s2 = sigma * sigma;
-  const xi = Complex.of(kappa).sub(iu.scale(rho * sigma));
-  const q = iu.add(u.mul(u));
-  const d = xi.mul(xi).add(q.scale(s2)).sqrt();
-  const p = xi.add(d);
-  const m = q.neg().div(p);
-  const g = m.scale(s2).div(p);
-  const e = d.scale(-T).exp();
-  const oneMinusE = one.sub(e);
-  const oneMinusGE = one.sub(g.mul(e));
-  const oneMinusG = one.sub(g);
-  const D = m.mul(oneMinusE).div(oneMinusGE);
-  const w = g.mul(oneMinusE).div(oneMinusG);
-  const L =
-    w.abs() < 1e-5
-      ? w.sub(w.mul(w).scale(0.5)).add(
-          w
-            .mul(w)
-            .mul(w)
-            .scale(1 / 3),
-        )
-      : w.addReal(1).log();
-  const kt = kappa * theta;
-  const C = m.scale(kt * T).sub(L.scale((2 * kt) / s2));
+  const { s2, iu, xi, q, d, p, m, g, e, oneMinusE, oneMinusGE, oneMinusG, D, w, L, kt, C } = exponentTerms(
+    params,
+    T,
+    u,
+  );
   const E = C.add(D.scale(v0));
 
   /** dE for the tangent (dξ, dσ, dκθ, d(2κθ/σ²)), with q independent of the parameters. */
