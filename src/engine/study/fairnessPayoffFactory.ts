@@ -17,16 +17,26 @@ export interface FairnessVanilla {
   isCall: boolean;
 }
 
+/** One caplet to reprice: fixing at `expiry` on the simple rate to `expiry + tenor`, per unit notional. */
+export interface FairnessCaplet {
+  currency: string;
+  expiry: number;
+  tenor: number;
+  strike: number;
+}
+
 export interface FairnessDescription {
   vanillas: FairnessVanilla[];
+  /** Caplets of the Hull–White fits (valued at the fixing date with the path's own bond price). */
+  caplets?: FairnessCaplet[];
   /** Times the main study run has on its grid, so both runs share the same grid (and so the same normals). */
   gridTimes: number[];
 }
 
 function desc(d: unknown): FairnessDescription {
   const x = d as FairnessDescription | null;
-  if (!x || !Array.isArray(x.vanillas) || x.vanillas.length === 0)
-    fail('E_NO_PAYOFF', 'payoff.description.vanillas', 'must list at least one vanilla', d);
+  if (!x || !Array.isArray(x.vanillas) || x.vanillas.length + (x.caplets?.length ?? 0) === 0)
+    fail('E_NO_PAYOFF', 'payoff.description.vanillas', 'must list at least one vanilla or caplet', d);
   return x;
 }
 
@@ -34,7 +44,35 @@ function desc(d: unknown): FairnessDescription {
 export function createEvaluators(description: unknown, context: EvaluatorContext): PathEvaluator[] {
   const d = desc(description);
   const v = context.variant;
-  return d.vanillas.map((q, i) => {
+  const caplets = (d.caplets ?? []).map((c, i): PathEvaluator => {
+    // Caplet paying τ (L − K)^+ at T2, L = (1/P(T1,T2) − 1)/τ fixed at T1: worth P(T1,T2) τ (L − K)^+ at T1
+    // (Brigo & Mercurio 2006, Sec. 1.5 and eq. 3.41), discounted with the path's numeraire; a foreign caplet is
+    // valued in its own currency through the FX rate as for the vanillas above.
+    const k = context.indexOf(c.expiry, `caplets[${i}].expiry`);
+    const fx = c.currency === v.domestic ? null : v.fx.find((f) => f.foreign === c.currency);
+    if (c.currency !== v.domestic && !fx)
+      fail(
+        'E_NO_FX',
+        `caplets[${i}].currency`,
+        `needs an FX rate for ${c.currency} in the variant`,
+        c.currency,
+      );
+    return (b: PathBatch) => {
+      const n = b.nPaths;
+      const out = new Float64Array(n);
+      const P = new Float64Array(n);
+      b.bond(c.currency, k, c.expiry + c.tenor, P);
+      const o = k * n;
+      const X = fx ? b.fx[fx.name]! : null;
+      for (let p = 0; p < n; p++) {
+        const L = (1 / P[p]! - 1) / c.tenor;
+        out[p] =
+          P[p]! * c.tenor * Math.max(L - c.strike, 0) * b.discount[o + p]! * (X ? X[o + p]! / X[p]! : 1);
+      }
+      return out;
+    };
+  });
+  const vanillas = d.vanillas.map((q, i) => {
     const k = context.indexOf(q.expiry, `vanillas[${i}].expiry`);
     const eq = v.equities.find((e) => e.name === q.equity);
     if (!eq)
@@ -61,12 +99,19 @@ export function createEvaluators(description: unknown, context: EvaluatorContext
       return out;
     };
   });
+  return [...vanillas, ...caplets];
 }
 
 /** Times the grid must contain. */
 export function eventTimes(description: unknown): number[] {
   const d = desc(description);
-  return [...new Set([...d.gridTimes, ...d.vanillas.map((q) => q.expiry)])].sort((a, b) => a - b);
+  return [
+    ...new Set([
+      ...d.gridTimes,
+      ...d.vanillas.map((q) => q.expiry),
+      ...(d.caplets ?? []).map((c) => c.expiry),
+    ]),
+  ].sort((a, b) => a - b);
 }
 
 /** Absolute URL of this module, for `RunSpec.payoff.factory`. */

@@ -28,7 +28,8 @@ import type {
   VariantSpec,
 } from '../simulation/types.ts';
 import { makeCurve } from '../market/curve.ts';
-import { bsPrice } from '../models/blackScholes.ts';
+import { bsPrice, black76 } from '../models/blackScholes.ts';
+import { bachelierPrice } from '../models/bachelier.ts';
 import { calibrateHeston, hestonModelPrices } from '../calibration/hestonCalibration.ts';
 import {
   bsForwardVols,
@@ -41,6 +42,16 @@ import type { CalibrationMode, FitRow, LadderVariant } from './types.ts';
 import { FACTOR_IDS, type FactorId } from './rules.ts';
 
 const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
+
+/** A fitted caplet: fixing at `expiry`, paid at `expiry + tenor`, price per unit notional. */
+export interface CapletQuote {
+  currency: string;
+  expiry: number;
+  tenor: number;
+  strike: number;
+  market: number;
+  vol: number;
+}
 
 /** What the ladder is calibrated from. */
 export interface LadderRequest {
@@ -68,7 +79,14 @@ export interface CalibratedLadder {
   /** Fitted Hull–White parameters per currency (only currencies whose rate is stochastic somewhere). */
   hullWhite: Record<
     string,
-    { params: HullWhiteParams; rmseBp: number; rows: FitRow[]; seconds: number; warnings: string[] }
+    {
+      params: HullWhiteParams;
+      rmseBp: number;
+      rows: FitRow[];
+      seconds: number;
+      warnings: string[];
+      caplets: CapletQuote[];
+    }
   >;
   /** Heston parameters per equity under deterministic rates (for warm starts and stability). */
   heston: Record<string, HestonParams>;
@@ -208,7 +226,15 @@ export function fitHullWhite(
   snapshot: MarketSnapshot,
   ccy: string,
   lastTime: number,
-): { params: HullWhiteParams; rmseBp: number; rows: FitRow[]; seconds: number; warnings: string[] } {
+): {
+  params: HullWhiteParams;
+  rmseBp: number;
+  rows: FitRow[];
+  seconds: number;
+  warnings: string[];
+  /** The caplets fitted (for the Monte Carlo repricing on the study's paths); empty for swaptions. */
+  caplets: CapletQuote[];
+} {
   const spec = snapshot.rateVols?.[ccy];
   if (!spec)
     fail(
@@ -237,7 +263,23 @@ export function fitHullWhite(
     warnings.push(
       `Hull–White fit of ${ccy} did not meet its tolerance (RMSE ${cal.rmseVol.toFixed(2)} ${cal.volUnit})`,
     );
-  return { params: cal.params, rmseBp: cal.rmseVol, rows, seconds: cal.seconds, warnings };
+  const caplets: CapletQuote[] =
+    spec.instrument !== 'caplet'
+      ? []
+      : cal.rows.map((r) => {
+          const T1 = r.expiry;
+          const T2 = r.expiry + r.tenor;
+          const P2 = curve.df(T2);
+          const F = (curve.df(T1) / P2 - 1) / r.tenor;
+          const annuity = r.tenor * P2;
+          // Market caplet price per unit notional: annuity × Bachelier (normal quotes) or Black (lognormal).
+          const market =
+            spec.type === 'normal'
+              ? annuity * bachelierPrice({ type: 'call', F, K: r.strike, T: T1, vol: r.marketVol })
+              : r.tenor * black76({ type: 'call', F, K: r.strike, T: T1, df: P2, vol: r.marketVol });
+          return { currency: ccy, expiry: T1, tenor: r.tenor, strike: r.strike, market, vol: r.marketVol };
+        });
+  return { params: cal.params, rmseBp: cal.rmseVol, rows, seconds: cal.seconds, warnings, caplets };
 }
 
 /** Builds and calibrates every variant of the ladder (2^k masks). */

@@ -371,11 +371,16 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
   checkAbort();
 
   const vanillas = fairnessVanillas(snap, analysis);
+  // Hull–White caplets fixing within the deal's life are repriced on the study's paths too.
+  const caplets = Object.values(ladder.hullWhite)
+    .flatMap((h) => h.caplets)
+    .filter((c) => c.expiry <= analysis.lastTime + 1e-9);
   const eventTimes = [
     ...new Set([
       ...compiled.gridTimes,
       ...compiled.exercise.flatMap((e) => e.times),
       ...vanillas.map((v) => v.expiry),
+      ...caplets.map((c) => c.expiry),
     ]),
   ].sort((a, b) => a - b);
   if (eventTimes.length === 0)
@@ -739,11 +744,19 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
     }
 
     // evidence of fairness: every ladder variant reprices its vanillas on the study's paths
-    if (vanillas.length) {
-      progress(0.72, 'fairness', `${vanillas.length} vanillas per variant on the study's paths`);
+    if (vanillas.length + caplets.length > 0) {
+      progress(
+        0.72,
+        'fairness',
+        `${vanillas.length} vanillas and ${caplets.length} caplets per variant on the study's paths`,
+      );
+      const nOut = vanillas.length + caplets.length;
       const spec: RunSpec = {
         variants,
-        payoff: { factory: fairnessPayoffFactoryUrl(), description: { vanillas, gridTimes: eventTimes } },
+        payoff: {
+          factory: fairnessPayoffFactoryUrl(),
+          description: { vanillas, caplets, gridTimes: eventTimes },
+        },
         grid: { eventTimes, maxStep },
         seed: S.seed,
         batchSize: S.batchSize,
@@ -753,8 +766,21 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       simSeconds += r.seconds;
       const st = columnStats(r.looks[0]!);
       ladder.variants.forEach((v, vi) => {
+        caplets.forEach((q, ci) => {
+          if (!v.spec.rates[q.currency]?.hw) return;
+          const c = vi * nOut + vanillas.length + ci;
+          const mc = st.mean(c);
+          v.calibration.fit.push({
+            instrument: `${q.currency} caplet ${q.expiry}y×${q.tenor}y K=${(q.strike * 100).toFixed(3)}% (Monte Carlo reprice)`,
+            marketVol: q.vol,
+            modelVol: q.vol,
+            priceError: mc - q.market,
+            mcError: { value: mc - q.market, se: st.se(c) },
+            calibrated: true,
+          });
+        });
         vanillas.forEach((q, qi) => {
-          const c = vi * vanillas.length + qi;
+          const c = vi * nOut + qi;
           const mc = st.mean(c);
           const eqq = snap.equities[q.equity]!;
           const curve = makeCurve(snap.curves[eqq.currency]!, 'curve');
