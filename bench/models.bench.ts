@@ -11,6 +11,7 @@ import {
   hestonCosSlice,
   hestonCosSliceWithGradient,
   hestonLewis,
+  type BsImpliedVolInput,
   type HestonMarket,
 } from '../src/engine/models/index.ts';
 
@@ -110,15 +111,7 @@ export async function run(): Promise<void> {
   }
 
   // Implied vol: a mix of moneyness and maturities, including wings.
-  const quotes: {
-    type: 'call' | 'put';
-    price: number;
-    S: number;
-    K: number;
-    T: number;
-    r: number;
-    q: number;
-  }[] = [];
+  const quotes: BsImpliedVolInput[] = [];
   for (const K of [40, 70, 90, 100, 110, 140, 250])
     for (const T of [0.05, 0.5, 2, 10]) {
       const type = K < 100 ? 'put' : 'call';
