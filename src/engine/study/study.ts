@@ -771,7 +771,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           const c = vi * nOut + vanillas.length + ci;
           const mc = st.mean(c);
           v.calibration.fit.push({
-            instrument: `${q.currency} caplet ${q.expiry}y×${q.tenor}y K=${(q.strike * 100).toFixed(3)}% (Monte Carlo reprice)`,
+            instrument: `${q.currency} caplet ${q.expiry}y×${q.tenor}y K=${(q.strike * 100).toFixed(5)}% (Monte Carlo reprice)`,
             marketVol: q.vol,
             modelVol: q.vol,
             priceError: mc - q.market,

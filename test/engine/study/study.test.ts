@@ -14,6 +14,8 @@ import { compileDeal } from '../../../src/engine/deal/compileDeal.ts';
 import { analyseDeal } from '../../../src/engine/deal/analyseDeal.ts';
 import { makeCurve } from '../../../src/engine/market/curve.ts';
 import { bsHullWhite } from '../../../src/engine/models/bsHullWhite.ts';
+import { makeHullWhite } from '../../../src/engine/models/hullWhite.ts';
+import { bachelierPrice } from '../../../src/engine/models/bachelier.ts';
 import { hestonCos } from '../../../src/engine/models/hestonCos.ts';
 import { blackUndiscounted } from '../../../src/engine/models/blackScholes.ts';
 import { gridVolAt } from '../../../src/engine/calibration/volGrid.ts';
@@ -96,6 +98,25 @@ describe('European call: closed-form checks of the study', () => {
     expect(Math.abs(cfDiff), 'closed forms agree (refit exact)').toBeLessThan(1e-6 * s.input.deal.notional);
     expect(Math.abs(d.delta), report('fair Δ', d.delta, 0, d.se)).toBeLessThanOrEqual(3 * d.se);
     expect(d.se).toBeLessThan(500);
+    // Evidence of fairness, second method: the caplet repriced on the study's paths matches the Hull–White closed
+    // form (Brigo & Mercurio 2006, eq. 3.41) within 3 SE; market prices by Bachelier on the normal quotes.
+    const hwv = s.ladder.find((x) => x.id === 'bs+hw(DOM)')!;
+    const rows = hwv.calibration.fit.filter((f) => f.mcError && f.instrument.includes('caplet'));
+    expect(rows.length).toBeGreaterThan(0);
+    const curve = makeCurve(market.curves.DOM!);
+    const model = makeHullWhite(curve, hwv.spec.rates.DOM!.hw!);
+    for (const f of rows) {
+      const m = /caplet ([\d.]+)y×([\d.]+)y K=([\d.]+)%/.exec(f.instrument)!;
+      const [T1, tau, K] = [Number(m[1]), Number(m[2]), Number(m[3]) / 100];
+      const P2 = curve.df(T1 + tau);
+      const F = (curve.df(T1) / P2 - 1) / tau;
+      const mkt = tau * P2 * bachelierPrice({ type: 'call', F, K, T: T1, vol: f.marketVol });
+      const cf = model.caplet({ type: 'cap', T1, T2: T1 + tau, strike: K, accrual: tau });
+      const mc = mkt + f.mcError!.value;
+      expect(Math.abs(mc - cf), report(f.instrument, mc, cf, f.mcError!.se)).toBeLessThanOrEqual(
+        3 * f.mcError!.se + 1e-9,
+      );
+    }
   });
   it('Heston vs Black–Scholes: the fair Δ equals the difference of the two fit errors at the quote within 3 SE, and the rules need no stochastic vol', async () => {
     // For a European at (K, T) both variants are priced by their own closed forms (Black; Heston by COS,
