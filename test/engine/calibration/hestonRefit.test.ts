@@ -9,6 +9,21 @@ import { EXPIRIES, MONEYNESS, flatCurveSpec, hestonGrid } from './syntheticMarke
 
 const FULL = process.env.FT_PROFILE === 'full';
 
+/**
+ * The 10-year smile of the Grzelak case: full-model FD implied vols at σ_v = 0.6 on the finer grid (200×300×80×40),
+ * published.md §2, with S0 = 100, r = 2 %, v0 = θ = 0.05, κ = 0.3, ρ_Sv = −0.3, ρ_Sr = 0.6, a = 0.01, σ_r = 0.01.
+ */
+const GRZELAK_EQUITY: EquityQuote = {
+  currency: 'DOM',
+  spot: 100,
+  divYield: 0,
+  vols: {
+    expiries: [10],
+    strikes: [40, 80, 100, 120, 180],
+    vols: [[0.266073, 0.208194, 0.192976, 0.184376, 0.182103]],
+  },
+};
+
 describe('Heston refit under Hull–White rates', () => {
   for (const [label, truth, rhoSR] of [
     ['ρ(S,r) = −0.4 and v0 < θ', { v0: 0.02, kappa: 1.2, theta: 0.05, sigma: 0.45, rho: -0.65 }, -0.4],
@@ -99,16 +114,7 @@ describe('Heston refit under Hull–White rates', () => {
       zeroRates: [0.02, 0.02, 0.02, 0.02, 0.02],
     };
     const curve = makeCurve(curveSpec);
-    const eq: EquityQuote = {
-      currency: 'DOM',
-      spot: 100,
-      divYield: 0,
-      vols: {
-        expiries: [10],
-        strikes: [40, 80, 100, 120, 180],
-        vols: [[0.266073, 0.208194, 0.192976, 0.184376, 0.182103]],
-      },
-    };
+    const eq = GRZELAK_EQUITY;
     const quotes = gridQuotes(eq, curve, 'g');
     const base = {
       name: 'G',
@@ -147,16 +153,7 @@ describe('Heston refit under Hull–White rates', () => {
   it('reports a refit that stops without meeting its tolerance', () => {
     const curveSpec = flatCurveSpec('DOM', 0.02);
     const curve = makeCurve(curveSpec);
-    const eq: EquityQuote = {
-      currency: 'DOM',
-      spot: 100,
-      divYield: 0,
-      vols: {
-        expiries: [10],
-        strikes: [40, 80, 100, 120, 180],
-        vols: [[0.266073, 0.208194, 0.192976, 0.184376, 0.182103]],
-      },
-    };
+    const eq = GRZELAK_EQUITY;
     const r = refitHestonUnderRates({
       name: 'G',
       equity: eq,
