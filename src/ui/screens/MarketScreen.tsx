@@ -285,6 +285,20 @@ function Curves(props: { m: MarketSnapshot; edit: Edit }) {
                 ))}
               </tbody>
             </table>
+            <button
+              className="small"
+              onClick={() =>
+                edit((x) => {
+                  const cv = x.curves[ccy]!;
+                  const n = cv.times.length;
+                  cv.times.push(n ? cv.times[n - 1]! + 1 : 1);
+                  if (cv.zeroRates) cv.zeroRates.push(n ? cv.zeroRates[n - 1]! : 0);
+                  if (cv.discountFactors) cv.discountFactors.push(n ? cv.discountFactors[n - 1]! : 1);
+                })
+              }
+            >
+              Add pillar
+            </button>{' '}
             <CsvPaste
               title={`Pillars of ${ccy}`}
               hint="Two columns: time in years, zero rate as a decimal (0.025) or with % (2.5%). An optional header row."

@@ -8,6 +8,7 @@ import type { SavedStudy } from '../../engine/study/types.ts';
 import type { RecentFile } from '../platform/platform.ts';
 import { errorText, useApp } from '../state/appContext.ts';
 import { num } from '../components/format.ts';
+import { loadDemoStudyText } from '../state/samples.ts';
 
 function show(v: unknown): string {
   if (v === undefined) return '(absent)';
@@ -158,6 +159,22 @@ export function ReviewScreen() {
                 Show in folder
               </button>
             )}
+          </div>
+          <div className="button-row">
+            <button
+              className="small"
+              onClick={async () => {
+                const demo = await loadDemoStudyText();
+                if (!demo) {
+                  notify('error', 'This build has no bundled demo study.');
+                  return;
+                }
+                await app.openStudyText(demo.name, demo.text, null);
+              }}
+              data-testid="reopen-demo"
+            >
+              Open the bundled demo study
+            </button>
           </div>
           {recent.length > 0 && (
             <>
