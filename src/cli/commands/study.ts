@@ -281,6 +281,21 @@ export function summaryLines(s: SavedStudy): string[] {
     lines.push(
       `Joint check without ${j.dropped.join(', ')}: difference ${f(j.difference)} ± ${f(j.z * j.se)} ${ccy}, budget ${f(j.budget)}: ${j.outcome}`,
     );
+  const lv = s.results.localVol;
+  if (lv)
+    lines.push(
+      `Local-vol split of the stochastic-vol effect: smile ${f(lv.smile.value)} ± ${f(lv.smile.se)}, vol dynamics ${f(lv.dynamics.value)} ± ${f(lv.dynamics.se)} ${ccy}`,
+    );
+  if (s.results.greekVerdicts.length)
+    lines.push(
+      `Hedge ratios: ${['delta', 'vega', 'rho']
+        .map((g) => {
+          const rows = s.results.greekVerdicts.filter((x) => x.greek === g);
+          return rows.length ? `${g} ${rows.map((x) => `${x.factor} ${x.decision.verdict}`).join(', ')}` : '';
+        })
+        .filter(Boolean)
+        .join('; ')}`,
+    );
   const sweeps = s.results.sweeps.filter((x) => x.priceMovesMaterially);
   for (const sw of sweeps)
     lines.push(
