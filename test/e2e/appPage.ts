@@ -142,3 +142,37 @@ export class AppPage {
     return this.page.evaluate(() => performance.now());
   }
 }
+
+/**
+ * Share of 20,000 arguments on which each elementary function gives a different double in the page than in this
+ * Node process: the usual cause when a study does not re-run bit for bit across runtimes.
+ */
+export async function mathMismatch(page: Page): Promise<Record<string, number>> {
+  const probe = (): Record<string, number[]> => {
+    const fns: Record<string, (x: number) => number> = {
+      exp: Math.exp,
+      log: Math.log,
+      pow: (x) => Math.pow(x, 1.37),
+      sin: Math.sin,
+      cos: Math.cos,
+      atan2: (x) => Math.atan2(x, 1.3),
+      expm1: Math.expm1,
+      sqrt: Math.sqrt,
+    };
+    let s = 12345;
+    const xs: number[] = [];
+    for (let i = 0; i < 20000; i++) {
+      s = (s * 1103515245 + 12345) % 2147483648;
+      xs.push((s / 2147483648) * 6 + 1e-3);
+    }
+    const out: Record<string, number[]> = {};
+    for (const [k, f] of Object.entries(fns)) out[k] = xs.map(f);
+    return out;
+  };
+  const here = probe();
+  const there = await page.evaluate(probe);
+  const rate: Record<string, number> = {};
+  for (const k of Object.keys(here))
+    rate[k] = here[k]!.filter((v, i) => v !== there[k]![i]).length / here[k]!.length;
+  return rate;
+}
