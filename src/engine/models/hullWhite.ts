@@ -20,7 +20,6 @@ import { fail, requireFinite, requireNonNegative, requirePositive } from '../err
 import type { DiscountCurve } from '../market/types.ts';
 import { normCdf } from '../math/normal.ts';
 import type { HullWhiteParams } from '../simulation/types.ts';
-import { hwB } from '../simulation/hullWhiteTerms.ts';
 
 export type { HullWhiteParams } from '../simulation/types.ts';
 
@@ -125,7 +124,9 @@ export function makeHullWhite(curve: DiscountCurve, params: HullWhiteParams): Hu
     }
     return acc;
   }
-  const B = (t: number, T: number): number => hwB(a, T - t); // (1 − e^{−a(T−t)})/a, BM eq. (3.39)
+  // B(t,T) = (1 − e^{−a(T−t)})/a, BM eq. (3.39): the simulation layer's hwB, inlined here because every bond, caplet
+  // and swaption price calls it several times inside the calibration's residual loop (a > 0 is checked above).
+  const B = (t: number, T: number): number => -Math.expm1(-a * (T - t)) / a;
   // ∫_lo^hi e^{−2a(t−u)} du = (e^{−2a(t−hi)} − e^{−2a(t−lo)})/(2a)
   const varX = (t: number): number =>
     pieces(t, (s2, lo, hi) => (s2 * (Math.exp(-2 * a * (t - hi)) - Math.exp(-2 * a * (t - lo)))) / (2 * a));
