@@ -25,7 +25,7 @@ describe('study hedge ratios of the sample European under Black–Scholes match 
         ...DEFAULT_SETTINGS,
         seed: 'crosscheck-greeks',
         paths: FULL ? 262_144 : 32_768,
-        firstPaths: 8192,
+        firstPaths: FULL ? 65_536 : 8192,
         batchSize: 4096,
         sweeps: null,
         localVol: false,

@@ -40,7 +40,7 @@ describe('a model-free deal through the whole study on the demo snapshot', () =>
         ...DEFAULT_SETTINGS,
         seed: 'crosscheck-model-free',
         paths: FULL ? 262_144 : 32_768,
-        firstPaths: 8192,
+        firstPaths: FULL ? 65_536 : 8192,
         batchSize: 4096,
         greeks: null,
         sweeps: null,

@@ -22,7 +22,7 @@ describe('the eq:ALDR|rate:DOM sweep of the sample European', () => {
         ...DEFAULT_SETTINGS,
         seed: 'crosscheck-sweep',
         paths: FULL ? 262_144 : 32_768,
-        firstPaths: 8192,
+        firstPaths: FULL ? 65_536 : 8192,
         batchSize: 4096,
         greeks: null,
         localVol: false,
