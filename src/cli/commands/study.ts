@@ -82,6 +82,7 @@ export const usage = [
   '                       stochVol, domesticRate, foreignRate',
   '  --naive              add factors without refitting (labelled; measures miscalibration too)',
   '  --euler              Heston by full-truncation Euler instead of QE',
+  '  --refit-mc           correct the Heston refit under stochastic rates by Monte Carlo of the full model',
   '  --no-greeks          skip delta, vega and rho',
   '  --no-sweeps          skip the sweeps over unquoted correlations',
   '  --no-local-vol       skip the local-volatility diagnostic',
@@ -192,6 +193,9 @@ export function parseStudyArgs(args: string[]): Parsed {
         break;
       case '--euler':
         over.scheme = 'euler';
+        break;
+      case '--refit-mc':
+        over.hestonRefit = 'monteCarlo';
         break;
       case '--no-greeks':
         greeks = false;

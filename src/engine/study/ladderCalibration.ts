@@ -37,6 +37,7 @@ import {
   bsTargetsFromGrid,
 } from '../calibration/blackScholesCalibration.ts';
 import { calibrateHullWhite } from '../calibration/hullWhiteCalibration.ts';
+import { refitHestonUnderRates } from '../calibration/hestonRefit.ts';
 import { gridQuotes, type VolQuote } from '../calibration/volGrid.ts';
 import type { CalibrationMode, FitRow, LadderVariant } from './types.ts';
 import { FACTOR_IDS, type FactorId } from './rules.ts';
@@ -71,6 +72,8 @@ export interface LadderRequest {
   correlationOverride?: Record<string, number>;
   /** Absolute strike of the Black–Scholes targets per equity (default: the ATM forward at each expiry). */
   bsStrikes?: Record<string, number>;
+  /** Correct the H1-HW Heston refit by Monte Carlo of the full model (own seed, never the study's paths). */
+  hestonMcRefit?: { paths: number; seed: string; maxStep: number };
 }
 
 /** The calibrated ladder. */
@@ -192,12 +195,41 @@ function fitHeston(
   expiries: number[],
   rates: { hw: HullWhiteParams; rho: number } | null,
   warm: HestonParams | undefined,
+  mcRefit?: { paths: number; seed: string; maxStep: number },
 ): { params: HestonParams; rows: FitRow[]; seconds: number; feller: number; warnings: string[] } {
   const curve = makeCurve(curveSpec, `market.curves.${eq.currency}`);
   const keep = new Set(expiries);
   const quotes: VolQuote[] = gridQuotes(eq, curve, `market.equities.${name}`).filter((q) =>
     keep.has(q.expiry),
   );
+  if (rates && mcRefit) {
+    // H1-HW refit corrected by Monte Carlo of the full Heston–Hull–White model (calibration layer; its own seed).
+    const r = refitHestonUnderRates({
+      name,
+      equity: eq,
+      curve,
+      curveSpec,
+      currency: eq.currency,
+      hw: rates.hw,
+      rhoSR: rates.rho,
+      quotes,
+      ...(warm ? { start: warm } : {}),
+      monteCarlo: { paths: mcRefit.paths, seed: mcRefit.seed, maxStep: mcRefit.maxStep },
+    });
+    const a = r.analytic;
+    const rows: FitRow[] = a.rows.map((x) => ({
+      instrument: `${name} K=${Math.round(x.strike * 100) / 100} T=${x.expiry}`,
+      marketVol: x.marketVol,
+      modelVol: x.modelVol,
+      priceError: x.modelPrice - x.marketPrice,
+      mcError: null,
+    }));
+    const warnings = r.warnings.map((w) => w.message);
+    if (r.status === 'not-met')
+      warnings.push(`Monte Carlo-corrected Heston refit of ${name} stopped without meeting its tolerance`);
+    const ratio = (2 * r.params.kappa * r.params.theta) / (r.params.sigma * r.params.sigma);
+    return { params: r.params, rows, seconds: r.seconds, feller: ratio, warnings };
+  }
   const res = calibrateHeston({
     name,
     equity: eq,
@@ -374,7 +406,15 @@ export function calibrateLadder(req: LadderRequest): CalibratedLadder {
       let dynamics: EquityDynamics;
       if (factors.includes('stochVol')) {
         const r = memo(`heston|${e.marketName}|${JSON.stringify(refit)}`, () =>
-          fitHeston(e.marketName, e.quote, curveSpec, expiries, refit, req.warmStart?.[e.marketName]),
+          fitHeston(
+            e.marketName,
+            e.quote,
+            curveSpec,
+            expiries,
+            refit,
+            req.warmStart?.[e.marketName] ?? (refit ? hestonDet[e.marketName] : undefined),
+            refit ? req.hestonMcRefit : undefined,
+          ),
         );
         if (r.fresh) seconds += r.value.seconds;
         if (!refit) hestonDet[e.marketName] = r.value.params;

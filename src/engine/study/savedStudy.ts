@@ -122,6 +122,7 @@ export const settingsSchema = z.object({
   extraCandidates: z.array(factorId),
   calibrationStrikes: z.record(z.string(), num.positive()),
   auxiliaryFraction: num.gt(0).lte(1),
+  hestonRefit: z.enum(['analytic', 'monteCarlo']).optional(),
 });
 
 const verdict = z.object({

@@ -54,6 +54,11 @@ export interface StudySettings {
   calibrationStrikes: Record<string, number>;
   /** Share of `paths` used by the auxiliary runs (step halving, sweeps, other snapshots), in (0, 1]. */
   auxiliaryFraction: number;
+  /**
+   * Heston refit under stochastic rates: 'analytic' (H1-HW characteristic function, default) or 'monteCarlo' (H1-HW
+   * corrected by Monte Carlo of the full model on its own seed, never the study's paths).
+   */
+  hestonRefit?: 'analytic' | 'monteCarlo';
 }
 
 /** Bump sizes and materiality thresholds of the hedge ratios. */
