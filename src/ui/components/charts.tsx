@@ -32,6 +32,17 @@ function niceTicks(lo: number, hi: number, n = 5): number[] {
   return out;
 }
 
+/** Tick labels with as many decimals as the tick step needs, so neighbouring ticks never print alike. */
+function stepFormat(ticks: number[]): (v: number) => string {
+  const step = ticks.length > 1 ? Math.abs(ticks[1]! - ticks[0]!) : 1;
+  const decimals = Math.max(0, Math.min(10, -Math.floor(Math.log10(step || 1) + 1e-9)));
+  const big = Math.max(...ticks.map(Math.abs)) >= 1e6 && step >= 1;
+  return (v: number) =>
+    big
+      ? num(v, Math.max(3, Math.ceil(Math.log10(Math.abs(v) || 1) - Math.log10(step)) + 1))
+      : v.toFixed(decimals).replace('-', '−');
+}
+
 function extent(values: number[]): [number, number] {
   let lo = Infinity;
   let hi = -Infinity;
@@ -67,9 +78,9 @@ export function LineChart(props: {
   const [y0, y1] = extent(pts.map((p) => p.y));
   const sx = (x: number): number => m.l + ((tx(x) - x0) / (x1 - x0)) * (W - m.l - m.r);
   const sy = (y: number): number => H - m.b - ((y - y0) / (y1 - y0)) * (H - m.t - m.b);
-  const yf = props.yFormat ?? ((v: number) => num(v, 3));
-  const xf = props.xFormat ?? ((v: number) => num(v, 3));
+  const yf = props.yFormat ?? stepFormat(niceTicks(y0, y1));
   const xTicks = props.logX ? niceTicks(Math.exp(x0), Math.exp(x1)).filter((v) => v > 0) : niceTicks(x0, x1);
+  const xf = props.xFormat ?? stepFormat(xTicks);
   if (pts.length === 0) return <p className="empty">No data to plot for {props.title.toLowerCase()}.</p>;
   return (
     <figure className="chart">

@@ -635,15 +635,22 @@ const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stal
                 points: r.convergence.map((c) => ({ x: c.paths, y: c.deltas[f]?.value ?? NaN })),
               },
               {
-                name: `${factorName(f)} ± 2 SE`,
+                name: `${factorName(f)} +2 SE`,
                 tone: i,
                 style: 'dashed' as const,
-                points: [
-                  ...r.convergence.map((c) => ({
-                    x: c.paths,
-                    y: (c.deltas[f]?.value ?? NaN) + 2 * (c.deltas[f]?.se ?? NaN),
-                  })),
-                ],
+                points: r.convergence.map((c) => ({
+                  x: c.paths,
+                  y: (c.deltas[f]?.value ?? NaN) + 2 * (c.deltas[f]?.se ?? NaN),
+                })),
+              },
+              {
+                name: `${factorName(f)} −2 SE`,
+                tone: i,
+                style: 'dashed' as const,
+                points: r.convergence.map((c) => ({
+                  x: c.paths,
+                  y: (c.deltas[f]?.value ?? NaN) - 2 * (c.deltas[f]?.se ?? NaN),
+                })),
               },
             ])}
           />
