@@ -15,8 +15,8 @@
  * κ up to 10 and σ up to 4 its argument stayed below 1.64 rad.
  *
  * Two versions: {@link hestonCharFn} on the immutable `Complex` type (readable reference, complex u allowed, used by
- * the Lewis integral) and {@link hestonLogCharFn} with inlined real/imaginary arithmetic for real u (COS inner loops:
- * {@link hestonExponentGrid}, {@link hestonCharFnGrid} and the calibration's COS slices all evaluate through it).
+ * the Lewis integral) and {@link hestonExponentGrid} with inlined real/imaginary arithmetic for real u (COS inner
+ * loops; {@link hestonCharFnGrid} and the calibration's COS slices, through {@link hestonLogCharFn}, evaluate through it).
  * Tests check that both agree. The gradient grid below repeats the first half of that arithmetic inside its own
  * loop on purpose: it reuses every intermediate (1/d, 1/p², 1/(1 − g e), ...) for the five tangents, and splitting it
  * into calls would recompute or allocate them per point in the calibration's hottest loop.
@@ -76,18 +76,24 @@ export function hestonCharFn(params: HestonParams, T: number, u: Complex): Compl
 }
 
 /**
- * ln φ(u) = C + D v₀ at one real u, for a fixed parameter set and maturity `T` (years), inlined arithmetic (no
- * allocation per point). The returned function writes Re and Im of C + D v₀ into `out[0]`, `out[1]` and, when `out`
- * holds at least four numbers, Re and Im of D into `out[2]`, `out[3]`. This is the one evaluation of the little-trap
- * form for real u: {@link hestonExponentGrid} loops over it, and the calibration's COS slices call it point by point
- * (they stop as soon as |φ| is negligible, so they do not know the grid length in advance).
+ * The exponent C + D v₀ and D on a grid of real u, inlined arithmetic (no allocation per point). Writes
+ * Re/Im of C + D v₀ into `eRe`, `eIm` and of D into `dRe`, `dIm` (each of length `u.length`).
  */
-export function hestonLogCharFn(params: HestonParams, T: number): (u: number, out: Float64Array) => void {
+export function hestonExponentGrid(
+  params: HestonParams,
+  T: number,
+  u: ArrayLike<number>,
+  eRe: Float64Array,
+  eIm: Float64Array,
+  dRe?: Float64Array,
+  dIm?: Float64Array,
+): void {
   const { v0, kappa, theta, sigma, rho } = params;
   const s2 = sigma * sigma;
   const kt = kappa * theta;
   const twoKtOverS2 = (2 * kt) / s2;
-  return (uj: number, out: Float64Array): void => {
+  for (let j = 0; j < u.length; j++) {
+    const uj = u[j]!;
     // ξ = κ − iρσu
     const xr = kappa;
     const xiI = -rho * sigma * uj;
@@ -156,39 +162,31 @@ export function hestonLogCharFn(params: HestonParams, T: number): (u: number, ou
     }
     const Cr = kt * T * mr - twoKtOverS2 * Lr;
     const Ci = kt * T * mi - twoKtOverS2 * Li;
-    out[0] = Cr + v0 * Dr;
-    out[1] = Ci + v0 * Di;
-    if (out.length >= 4) {
-      out[2] = Dr;
-      out[3] = Di;
+    eRe[j] = Cr + v0 * Dr;
+    eIm[j] = Ci + v0 * Di;
+    if (dRe && dIm) {
+      dRe[j] = Dr;
+      dIm[j] = Di;
     }
-  };
+  }
 }
 
 /**
- * The exponent C + D v₀ and D on a grid of real u (by {@link hestonLogCharFn} at each point). Writes
- * Re/Im of C + D v₀ into `eRe`, `eIm` and of D into `dRe`, `dIm` (each of length `u.length`).
+ * ln φ(u) = C + D v₀ at one real u, for a fixed parameter set and maturity `T` (years): writes Re and Im into
+ * `out[0]`, `out[1]`. The evaluation is {@link hestonExponentGrid} on a one-point grid (no allocation per point), so
+ * the calibration's COS slices, which stop as soon as |φ| is negligible and so cannot size a grid in advance, use the
+ * same arithmetic as the pricers here.
  */
-export function hestonExponentGrid(
-  params: HestonParams,
-  T: number,
-  u: ArrayLike<number>,
-  eRe: Float64Array,
-  eIm: Float64Array,
-  dRe?: Float64Array,
-  dIm?: Float64Array,
-): void {
-  const at = hestonLogCharFn(params, T);
-  const out = new Float64Array(dRe && dIm ? 4 : 2);
-  for (let j = 0; j < u.length; j++) {
-    at(u[j]!, out);
-    eRe[j] = out[0]!;
-    eIm[j] = out[1]!;
-    if (dRe && dIm) {
-      dRe[j] = out[2]!;
-      dIm[j] = out[3]!;
-    }
-  }
+export function hestonLogCharFn(params: HestonParams, T: number): (u: number, out: Float64Array) => void {
+  const u1 = new Float64Array(1);
+  const re = new Float64Array(1);
+  const im = new Float64Array(1);
+  return (u: number, out: Float64Array): void => {
+    u1[0] = u;
+    hestonExponentGrid(params, T, u1, re, im);
+    out[0] = re[0]!;
+    out[1] = im[0]!;
+  };
 }
 
 /** φ(u) on a grid of real u, inlined arithmetic: writes Re φ and Im φ into `re`, `im`. */
