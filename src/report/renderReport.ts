@@ -423,7 +423,13 @@ ${table(
       .join('');
     sec.push(
       `<h2>Unquoted correlations</h2>${table(
-        ['Pair', 'Range', 'Price band', 'Moves more than τ', 'Factors material somewhere'],
+        [
+          'Pair',
+          'Range',
+          'Price band',
+          'Moves more than τ',
+          'Factors material somewhere (|Δ| − 1.96·SE > τ)',
+        ],
         s.results.sweeps.map((sw) => [
           esc(sw.pair),
           `${fmt(sw.range[0], 3)} … ${fmt(sw.range[1], 3)}`,

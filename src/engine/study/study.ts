@@ -267,7 +267,16 @@ function maxAbsVolErr(l: CalibratedLadder, mask: number): number {
   return l.variants.find((v) => v.mask === mask)?.calibration.maxAbsVolError ?? 0;
 }
 
-/** Runs a study. */
+/**
+ * Runs a factor study and returns the sealed study file (plain data).
+ * Stages: rules → calibrated ladder (and vega-bumped, local-vol variants) → early-exercise policies when the deal has
+ * rights → step-halving check → vega run → main run in looks (every variant × base, spot ±, rate ± scenarios) →
+ * sequential decision, joint test, Shapley shares, hedge-ratio tests → fairness repricing → local-vol split →
+ * correlation sweeps → other snapshots. All runs share the seed; amounts are in the deal currency.
+ * `opts.makeExecutor(workers)` supplies the batch executor (worker threads in Node, Web Workers in a browser);
+ * the default runs batches in this thread. Results are bit-identical for any executor and worker count.
+ * Rejects with an EngineError naming the field for bad input, and with `E_CANCELLED` when `opts.signal` aborts.
+ */
 export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): Promise<SavedStudy> {
   const tStart = now();
   const P = prepare(input);
