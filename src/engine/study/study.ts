@@ -662,7 +662,9 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
             ? `|Δ| clears τ by more than z·SE + b at ${schedule[d.decidedAtLook!]!.paths} paths`
             : d.verdict === 'drop'
               ? `|Δ| + z·SE + b stays below τ at ${schedule[d.decidedAtLook!]!.paths} paths`
-              : 'the interval Δ ± (z·SE + b) still straddles τ at the final path count';
+              : d.at.budget > d.at.z * d.at.se
+                ? 'the interval Δ ± (z·SE + b) still straddles τ; the error budget b dominates, so more paths alone will not decide it'
+                : 'the interval Δ ± (z·SE + b) still straddles τ at the final path count; more paths would narrow z·SE';
         return {
           factor: r.factor,
           status: r.status,
