@@ -97,6 +97,10 @@ export function variantCorrelation(v: VariantSpec, drivers: readonly string[]): 
  * Lower Cholesky factor L (row-major, n × n) with L Lᵀ = m (Cholesky–Banachiewicz; Golub & Van Loan, "Matrix
  * Computations", 4th ed. 2013, Alg. 4.2.1). A matrix that is not positive semi-definite raises E_NOT_PSD naming the
  * variant and the first driver where the factorisation fails; semi-definite directions (a zero pivot) are allowed.
+ * Kept beside math/linalg's `cholesky` on purpose: on a positive definite matrix both do the same arithmetic, but this
+ * one returns the flat row-major array the path generator reads, tolerates pivots down to −1e-10 (correlation
+ * matrices of study variants rounded to their inputs' digits) and names the driver; switching would change which
+ * near-singular variants a study accepts.
  */
 export function choleskyLower(m: number[][], names: readonly string[], field: string): Float64Array {
   const n = m.length;
