@@ -192,32 +192,21 @@ describe('compiled programs are well formed', () => {
         ...c.exercise.map((x) => x.amount.amount),
       ];
       for (const p of programs) {
+        // The nodes a node reads (its operands), by kind.
+        const operands = (n: (typeof p.nodes)[number]): number[] =>
+          n.op === 'unary'
+            ? [n.a]
+            : n.op === 'binary'
+              ? [n.a, n.b]
+              : n.op === 'select'
+                ? [n.c, n.a, n.b]
+                : n.op === 'nary'
+                  ? n.args
+                  : [];
         p.nodes.forEach((n, i) => {
-          const refs =
-            n.op === 'unary'
-              ? [n.a]
-              : n.op === 'binary'
-                ? [n.a, n.b]
-                : n.op === 'select'
-                  ? [n.c, n.a, n.b]
-                  : n.op === 'nary'
-                    ? n.args
-                    : [];
-          for (const r of refs) expect(r, `${f} ${p.field} node ${i}`).toBeLessThan(i);
+          for (const r of operands(n)) expect(r, `${f} ${p.field} node ${i}`).toBeLessThan(i);
         });
-        const used = new Set(
-          p.nodes.flatMap((n) =>
-            n.op === 'unary'
-              ? [n.a]
-              : n.op === 'binary'
-                ? [n.a, n.b]
-                : n.op === 'select'
-                  ? [n.c, n.a, n.b]
-                  : n.op === 'nary'
-                    ? n.args
-                    : [],
-          ),
-        );
+        const used = new Set(p.nodes.flatMap(operands));
         expect(used.has(p.nodes.length - 1), `${f} ${p.field}: the last node must be the root`).toBe(false);
       }
     }
