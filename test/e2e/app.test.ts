@@ -70,6 +70,14 @@ afterAll(async () => {
 });
 
 describe('browser build', () => {
+  it('the built page carries the strict content security policy', () => {
+    const html = fs.readFileSync(path.join(root, 'dist', 'web', 'index.html'), 'utf8');
+    const csp = html.match(/http-equiv="Content-Security-Policy" content="([^"]+)"/)?.[1] ?? '';
+    expect(csp).toMatch(/default-src 'none'/);
+    expect(csp).toMatch(/script-src 'self'(;|$)/);
+    expect(csp).not.toMatch(/unsafe-inline|unsafe-eval|https?:/);
+  });
+
   it('first start opens the bundled demo study and shows a verdict per factor, with the caution', async () => {
     const app = await AppPage.open(browser, url);
     try {

@@ -34,6 +34,8 @@ const MONITOR = `
 
 export class AppPage {
   readonly errors: string[] = [];
+  /** Every URL the page requested that is not the app's own server (must stay empty: no remote content). */
+  readonly foreign: string[] = [];
   /** Types of the dialogs the page opened (all accepted). */
   readonly dialogs: string[] = [];
   private constructor(
@@ -50,6 +52,12 @@ export class AppPage {
     const page = await context.newPage();
     const app = new AppPage(context, page);
     page.on('pageerror', (e) => app.errors.push(e.message));
+    const origin = new URL(url).origin;
+    context.on('request', (r) => {
+      const u = r.url();
+      if (!(u.startsWith(origin + '/') || u.startsWith('data:') || u.startsWith('blob:')))
+        app.foreign.push(u);
+    });
     page.on('dialog', (d) => {
       app.dialogs.push(d.type());
       void d.accept();
