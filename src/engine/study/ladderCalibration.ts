@@ -28,6 +28,7 @@ import type {
   VariantSpec,
 } from '../simulation/types.ts';
 import { makeCurve } from '../market/curve.ts';
+import { isPsd, nearestCorrelation } from '../math/linalg.ts';
 import { bsPrice, black76 } from '../models/blackScholes.ts';
 import { bachelierPrice } from '../models/bachelier.ts';
 import { calibrateHeston, hestonModelPrices } from '../calibration/hestonCalibration.ts';
@@ -469,6 +470,36 @@ export function calibrateLadder(req: LadderRequest): CalibratedLadder {
           ),
         );
         matrix[i]![names.length - 1] = (e.dynamics as HestonParams).rho;
+      }
+    }
+    // The drivers this variant uses must have a positive semi-definite correlation; otherwise stop and offer the
+    // nearest valid matrix (Higham 2002), never repair it silently.
+    {
+      const active = [
+        ...eqSpecs.map((e) => `eq:${e.name}`),
+        ...eqSpecs.filter((e) => e.dynamics.kind === 'heston').map((e) => `var:${e.name}`),
+        ...Object.keys(rates)
+          .filter((c) => rates[c]!.hw)
+          .map((c) => `rate:${c}`),
+        ...fxs.map((f) => `fx:${f.name}`),
+      ].filter((n) => names.includes(n));
+      const sub = active.map((x) => active.map((y) => matrix[names.indexOf(x)]![names.indexOf(y)]!));
+      if (!isPsd(sub)) {
+        const near = nearestCorrelation(sub);
+        const changes: string[] = [];
+        active.forEach((x, i) =>
+          active.forEach((y, j) => {
+            if (j > i && Math.abs(near.matrix[i]![j]! - sub[i]![j]!) > 5e-4)
+              changes.push(`${x}|${y} ${sub[i]![j]!.toFixed(3)} → ${near.matrix[i]![j]!.toFixed(3)}`);
+          }),
+        );
+        fail(
+          'E_NOT_PSD',
+          `market.correlation (variant ${variantLabel(factors, foreign, dom)})`,
+          'must be positive semi-definite over the drivers the variant uses (fitted Heston ρ included)',
+          active,
+          `the nearest valid matrix (Higham 2002) changes: ${changes.slice(0, 6).join('; ') || 'small entries only'}`,
+        );
       }
     }
     const id = variantId(factors, foreign, dom) + (req.mode === 'naive' ? '~naive' : '');
