@@ -39,7 +39,7 @@ describe('a foreign Heston equity fitted by the ladder reprices its own-currency
     });
     const fitted = ladder.variants.find((x) => x.id === 'heston')!.spec;
     // The generator assumes corr(var:KESO, fx) = 0 (simulation README); the demo snapshot's 0.1 is set to 0 here.
-    // With the snapshot's 0.1 the converted prices come out about 4 SE high (recorded in the review notes): the
+    // With the snapshot's 0.1 the converted prices come out about 4 SE high (400k paths): the
     // variance's own change of measure is missing.
     const names = fitted.correlation.names;
     const iv = names.indexOf('var:KESO');

@@ -4,7 +4,7 @@
  * rates (Grzelak & Oosterlee 2011; shared/reference/published.md Sec. 2, "Validation ... at rho_sr = 0", where the
  * exact and H1-HW engines agree to every printed digit). So the paired Monte Carlo difference between the variants
  * heston+hw(DOM) and heston must equal the difference of their analytic model prices (H1-HW minus COS), within 3
- * paired SE. (At the snapshot's ρ = 0.15 the same comparison misses by up to 12 SE: see the review notes.)
+ * paired SE. (At the snapshot's ρ = 0.15 the same comparison misses by up to 12 paired SE on 400k paths.)
  */
 import { describe, it, expect } from 'vitest';
 import { calibrateLadder } from '../../src/engine/study/ladderCalibration.ts';

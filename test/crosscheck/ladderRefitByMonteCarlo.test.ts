@@ -144,7 +144,7 @@ describe('fair refits of the demo ladder reprice their vanillas by Monte Carlo t
   });
 
   // heston+hw(DOM) is left out: its H1-HW refit misses the full model by up to ~0.5 on these quotes (paired z up
-  // to 12), an approximation error recorded in the review notes rather than asserted here.
+  // to 12), an approximation error of H1-HW at ρ ≠ 0, not asserted here.
   for (const id of ['heston'])
     it(`${id}: Monte Carlo reprices the 1y and 2y quotes at 90 %, 100 % and 110 % of spot within 3 SE plus the analytic fit residual`, () => {
       const v = L.variants.find((x) => x.id === id)!;
