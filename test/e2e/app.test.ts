@@ -53,7 +53,14 @@ beforeAll(async () => {
     throw new Error(
       `Chromium is not installed at ${CHROMIUM_PATH}: install it (apt-get install -y chromium, as CI does); the browser tests cannot run without it.`,
     );
-  await build({ configFile: path.join(root, 'vite.config.ts'), logLevel: 'warn' });
+  // The production renderer, as users get it (the test runner sets NODE_ENV=test, which would build React's development mode).
+  const nodeEnv = process.env.NODE_ENV;
+  process.env.NODE_ENV = 'production';
+  try {
+    await build({ configFile: path.join(root, 'vite.config.ts'), logLevel: 'warn', mode: 'production' });
+  } finally {
+    process.env.NODE_ENV = nodeEnv;
+  }
   server = await preview({
     configFile: path.join(root, 'vite.config.ts'),
     preview: { host: '127.0.0.1', port: 0, strictPort: false },
