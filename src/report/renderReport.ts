@@ -350,6 +350,15 @@ ${table(
   s.results.shapley.map((x) => [esc(label(x.factor)), fmt(x.value), fmt(x.se, 3)]),
 )}`);
 
+  // 7b. Per-equity breakdown
+  if (s.results.perEquity?.length)
+    sec.push(`<h2>Stochastic volatility, equity by equity</h2>
+<p class="muted">Richest variant minus the richest with one equity back on its Black–Scholes fit, on the same paths.</p>
+${table(
+  ['Equity', `Δ (${esc(ccy)})`, 'SE'],
+  s.results.perEquity.map((x) => [esc(x.equity), fmt(x.delta.value), fmt(x.delta.se, 3)]),
+)}`);
+
   // 8. Local vol
   if (s.results.localVol) {
     const lv = s.results.localVol;

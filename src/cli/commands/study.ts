@@ -83,6 +83,7 @@ export const usage = [
   '  --naive              add factors without refitting (labelled; measures miscalibration too)',
   '  --euler              Heston by full-truncation Euler instead of QE',
   '  --refit-mc           correct the Heston refit under stochastic rates by Monte Carlo of the full model',
+  '  --per-equity         break the stochastic-vol factor down per equity (deals on several equities)',
   '  --no-greeks          skip delta, vega and rho',
   '  --no-sweeps          skip the sweeps over unquoted correlations',
   '  --no-local-vol       skip the local-volatility diagnostic',
@@ -196,6 +197,9 @@ export function parseStudyArgs(args: string[]): Parsed {
         break;
       case '--refit-mc':
         over.hestonRefit = 'monteCarlo';
+        break;
+      case '--per-equity':
+        over.perEquity = true;
         break;
       case '--no-greeks':
         greeks = false;

@@ -123,6 +123,7 @@ export const settingsSchema = z.object({
   calibrationStrikes: z.record(z.string(), num.positive()),
   auxiliaryFraction: num.gt(0).lte(1),
   hestonRefit: z.enum(['analytic', 'monteCarlo']).optional(),
+  perEquity: z.boolean().optional(),
 });
 
 const verdict = z.object({

@@ -987,6 +987,41 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         );
     }
 
+    // per-equity breakdown of the stochastic-vol factor (on request, deals on several equities): the richest
+    // variant against the richest with one equity back on its Black–Scholes fit, on common random numbers
+    const perEquity: { equity: string; delta: ValueSe }[] = [];
+    if (S.perEquity && svBit >= 0 && variants[full]!.equities.length > 1) {
+      progress(0.88, 'per-equity', 'stochastic vol of one equity at a time');
+      const rich = variants[full]!;
+      const flat = variants[full ^ (1 << svBit)]!;
+      const drop = rich.equities.map((e) => ({
+        ...rich,
+        id: `${rich.id}-sv(${e.name})`,
+        label: `${rich.label} without stochastic vol of ${e.name}`,
+        equities: rich.equities.map((x) =>
+          x.name === e.name ? flat.equities.find((y) => y.name === e.name)! : x,
+        ),
+      }));
+      const r = await runInLooks({
+        spec: {
+          variants: [rich, ...drop],
+          payoff,
+          grid: { eventTimes, maxStep },
+          seed: S.seed,
+          batchSize: S.batchSize,
+          maxPaths: aux,
+        },
+        executor,
+        lookPaths: [aux],
+        signal: opts.signal,
+      });
+      simSeconds += r.seconds;
+      const st = toStats(r.looks[0]!);
+      rich.equities.forEach((e, i) =>
+        perEquity.push({ equity: e.name, delta: combination(st, { 0: 1, [i + 1]: -1 }) }),
+      );
+    }
+
     // other snapshots: parameters and verdicts
     const stability: StudyResults['stability'] = [];
     const paramsOf = (l: CalibratedLadder): Record<string, Record<string, number>> => {
@@ -1116,6 +1151,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       greekVerdicts,
       sweeps,
       localVol: lvRun ? { smile: lvRun.smile, dynamics: lvRun.dynamics, total: lvRun.total } : null,
+      ...(perEquity.length ? { perEquity } : {}),
       modelRisk,
       stepHalving,
       stepHalvingChange: stepHalvingRaw,

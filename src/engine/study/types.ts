@@ -59,6 +59,8 @@ export interface StudySettings {
    * corrected by Monte Carlo of the full model on its own seed, never the study's paths).
    */
   hestonRefit?: 'analytic' | 'monteCarlo';
+  /** Break the stochastic-vol factor down per equity (deals on several equities). */
+  perEquity?: boolean;
 }
 
 /** Bump sizes and materiality thresholds of the hedge ratios. */
@@ -196,6 +198,8 @@ export interface StudyResults {
   greeks: { variant: string; delta: ValueSe; vega: ValueSe | null; rho: ValueSe }[] | null;
   greekVerdicts: GreekVerdict[];
   sweeps: Sweep[];
+  /** On request: Δ of the stochastic vol of each equity alone (richest minus richest with that equity on BS). */
+  perEquity?: { equity: string; delta: ValueSe }[];
   /** Local-vol split of the stochastic-vol effect (deterministic rates). */
   localVol: { smile: ValueSe; dynamics: ValueSe; total: ValueSe } | null;
   /** Spread of prices across variants that fit the market within tolerance. */
