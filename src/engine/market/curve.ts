@@ -13,6 +13,7 @@
  */
 import { EngineError, issue, throwIfErrors, type FieldIssue } from '../errors.ts';
 import type { CurveSpec, DiscountCurve } from './types.ts';
+import { bracketIndex } from '../math/search.ts';
 
 function num(v: unknown): v is number {
   return typeof v === 'number' && Number.isFinite(v);
@@ -130,16 +131,7 @@ export function makeCurve(spec: CurveSpec, field = 'curve'): DiscountCurve {
       ? (y[n - 1]! - y[n - 2]!) / (tn - x[n - 2]!) + ((tn - x[n - 2]!) * (2 * m[n - 1]! + m[n - 2]!)) / 6
       : z1;
 
-  function segment(t: number): number {
-    let lo = 0;
-    let hi = n - 1;
-    while (hi - lo > 1) {
-      const mid = (lo + hi) >> 1;
-      if (x[mid]! <= t) lo = mid;
-      else hi = mid;
-    }
-    return lo;
-  }
+  const segment = (t: number): number => bracketIndex(x, t);
   /** y(t) = −ln P(0,t). */
   function yOf(t: number): number {
     if (t <= x[0]!) return z1 * t;

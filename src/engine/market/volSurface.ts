@@ -19,6 +19,7 @@
  */
 import { EngineError, issue, throwIfErrors, type FieldIssue } from '../errors.ts';
 import { normCdf } from '../math/normal.ts';
+import { bracketIndex } from '../math/search.ts';
 import type { VolGridSpec } from './types.ts';
 
 /** A queryable implied-vol surface. Times in years, strikes in currency units, vols lognormal decimals. */
@@ -172,13 +173,7 @@ export function monotoneCubic(x: readonly number[], y: readonly number[]): (t: n
   return (t: number): number => {
     if (t <= x[0]!) return y[0]!;
     if (t >= x[n - 1]!) return y[n - 1]!;
-    let lo = 0;
-    let hi = n - 1;
-    while (hi - lo > 1) {
-      const mid = (lo + hi) >> 1;
-      if (x[mid]! <= t) lo = mid;
-      else hi = mid;
-    }
+    const lo = bracketIndex(x, t);
     const hh = h[lo]!;
     const u = (t - x[lo]!) / hh;
     const u2 = u * u;

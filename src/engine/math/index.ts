@@ -3,3 +3,4 @@ export * from './complex.ts';
 export * from './quadrature.ts';
 export * from './roots.ts';
 export * from './linalg.ts';
+export * from './search.ts';

@@ -3,6 +3,7 @@
  * `out[p] = σ(t, spot[p])` for a whole array of paths, so any surface (e.g. one calibrated elsewhere) can be plugged in.
  */
 import { fail } from '../errors.ts';
+import { bracketIndex } from '../math/search.ts';
 
 /** Fills `out[p]` with the local vol (per √year) at time `t` (years) and level `spot[p]`, for p < spot.length. */
 export type LocalVolFunction = (t: number, spot: Float64Array, out: Float64Array) => void;
@@ -20,13 +21,7 @@ function bracket(xs: readonly number[], x: number): { i: number; w: number } {
   const n = xs.length;
   if (n === 1 || x <= xs[0]!) return { i: 0, w: 0 };
   if (x >= xs[n - 1]!) return { i: n - 2, w: 1 };
-  let lo = 0;
-  let hi = n - 1;
-  while (hi - lo > 1) {
-    const mid = (lo + hi) >> 1;
-    if (xs[mid]! <= x) lo = mid;
-    else hi = mid;
-  }
+  const lo = bracketIndex(xs, x);
   return { i: lo, w: (x - xs[lo]!) / (xs[lo + 1]! - xs[lo]!) };
 }
 
