@@ -12,7 +12,9 @@
 import type { HullWhiteParams } from './types.ts';
 import { fail, requireNonNegative, requirePositive } from '../errors.ts';
 
-// 8-point Gauss–Legendre nodes and weights on [−1, 1] (Abramowitz & Stegun 1964, Table 25.4).
+// 8-point Gauss–Legendre nodes and weights on [−1, 1] (Abramowitz & Stegun 1964, Table 25.4). Kept as tabulated
+// rather than math/quadrature's gaussLegendre(8): the computed rule differs in the last bit of some entries, and the
+// Hull–White terms feed every simulated path, so switching would change seeded results and saved studies' hashes.
 const GL_X = [
   -0.9602898564975363, -0.7966664774136267, -0.525532409916329, -0.1834346424956498, 0.1834346424956498,
   0.525532409916329, 0.7966664774136267, 0.9602898564975363,
