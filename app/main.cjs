@@ -11,6 +11,8 @@ const sec = require('./lib/security.cjs');
 const { CHANNELS, MENU_CHANNEL, validateSender } = require('./lib/ipc.cjs');
 const { createShellHandlers } = require('./lib/shellHandlers.cjs');
 const recent = require('./lib/recentFiles.cjs');
+const { writeFileAtomic } = require('./lib/atomicWrite.cjs');
+const { pathToFileURL } = require('node:url');
 
 const RENDERER_ROOT = path.join(__dirname, '..', 'dist', 'desktop');
 
@@ -31,13 +33,24 @@ function recentFile() {
   return path.join(app.getPath('userData'), 'recent-files.json');
 }
 
+/** file:// URLs of reports being printed right now: the only local files any window may load. */
+const printing = new Set();
+
 async function printToPdf(html) {
+  // A report can exceed the length a data: URL may have, so it is printed from a private temporary file.
+  const dir = fs.mkdtempSync(path.join(app.getPath('temp'), 'factor-triage-print-'));
+  const file = path.join(dir, 'report.html');
+  writeFileAtomic(file, html);
+  const url = pathToFileURL(file).href;
+  printing.add(url);
   const win = new BrowserWindow(sec.printWindowOptions());
   try {
-    await win.loadURL('data:text/html;charset=utf-8,' + encodeURIComponent(html));
+    await win.loadURL(url);
     return await win.webContents.printToPDF({ printBackground: true, pageSize: 'A4' });
   } finally {
     win.destroy();
+    printing.delete(url);
+    fs.rmSync(dir, { recursive: true, force: true });
   }
 }
 
@@ -156,12 +169,13 @@ app.whenReady().then(() => {
       },
     });
   });
-  // No remote content: every request that is not the app's own scheme (or the PDF printer's data: page) is cancelled.
+  // No remote content: every request that is not the app's own scheme (or a report being printed) is cancelled.
   session.defaultSession.webRequest.onBeforeRequest((details, cb) => {
     const ok =
       details.url.startsWith(`${sec.APP_ORIGIN}/`) ||
       details.url.startsWith('data:') ||
-      details.url.startsWith('devtools:');
+      details.url.startsWith('devtools:') ||
+      printing.has(details.url);
     cb({ cancel: !ok });
   });
   session.defaultSession.setPermissionRequestHandler((_wc, _perm, cb) => cb(false));

@@ -1,5 +1,9 @@
 import { describe, it, expect, beforeAll } from 'vitest';
 import { createRequire } from 'node:module';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { BRIDGE_CHANNELS } from '../../src/ui/platform/desktopBridge.ts';
 
 const require = createRequire(import.meta.url);
@@ -15,6 +19,9 @@ function fakeElectron() {
     beforeRequest: null as null | Function,
     permission: null as null | Function,
     menu: null as any,
+    nextSave: null as string | null,
+    /** What the print window loaded, whether the file existed then, and whether it was allowed. */
+    printed: [] as { url: string; existed: boolean; allowed: boolean }[],
   };
   let ready: () => void = () => {};
   const readyPromise = new Promise<void>((r) => (ready = r));
@@ -32,6 +39,11 @@ function fakeElectron() {
     }
     loadURL(url: string) {
       rec.windows[rec.windows.length - 1]!.url = url;
+      if (url.startsWith('file:')) {
+        let allowed = false;
+        rec.beforeRequest?.({ url }, (r: { cancel: boolean }) => (allowed = !r.cancel));
+        rec.printed.push({ url, existed: fs.existsSync(fileURLToPath(url)), allowed });
+      }
       return Promise.resolve();
     }
     setTitle() {}
@@ -45,14 +57,16 @@ function fakeElectron() {
     app: {
       whenReady: () => readyPromise,
       on: (ev: string, h: Function) => (rec.appHandlers[ev] = h),
-      getPath: () => '/tmp/ft-fake-user-data',
+      getPath: (name: string) =>
+        name === 'temp' ? os.tmpdir() : path.join(os.tmpdir(), 'ft-fake-user-data'),
       quit: () => {},
     },
     BrowserWindow,
     Menu: { buildFromTemplate: (t: any) => t, setApplicationMenu: (m: any) => (rec.menu = m) },
     dialog: {
       showOpenDialog: async () => ({ canceled: true, filePaths: [] }),
-      showSaveDialog: async () => ({ canceled: true }),
+      showSaveDialog: async () =>
+        rec.nextSave ? { canceled: false, filePath: rec.nextSave } : { canceled: true },
     },
     ipcMain: { handle: (ch: string, h: Function) => rec.ipc.set(ch, h) },
     protocol: {
@@ -150,5 +164,24 @@ describe('main process wiring', () => {
   it('answers files outside the renderer folder with 404', async () => {
     const r = await rec.protocolHandler!({ url: 'app://factor-triage/x/%2F..%2F..%2F..%2Fpackage.json' });
     expect(r.status).toBe(404);
+  });
+  it('prints a report to PDF from a private temporary file that only the print window may load, then removes it', async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ft-pdf-'));
+    rec.nextSave = path.join(dir, 'report.pdf');
+    const h = rec.ipc.get(BRIDGE_CHANNELS.exportReportPdf)!;
+    const r = await h(
+      { senderFrame: { url: 'app://factor-triage/index.html' } },
+      { html: '<!doctype html><p>r</p>', suggestedName: 'report' },
+    );
+    expect(r.ok, JSON.stringify(r)).toBe(true);
+    expect(rec.printed, JSON.stringify({ r, windows: rec.windows.map((w) => w.url) })).toHaveLength(1);
+    expect(rec.printed[0]).toMatchObject({ existed: true, allowed: true });
+    expect(fs.existsSync(fileURLToPath(rec.printed[0]!.url))).toBe(false);
+    let after: any = null;
+    rec.beforeRequest!({ url: rec.printed[0]!.url }, (x: any) => (after = x));
+    expect(after).toEqual({ cancel: true });
+    expect(fs.existsSync(rec.nextSave)).toBe(true);
+    fs.rmSync(dir, { recursive: true, force: true });
+    rec.nextSave = null;
   });
 });
