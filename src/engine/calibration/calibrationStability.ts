@@ -133,36 +133,20 @@ export function calibrationStability(
         rateVols: rv,
         mode: options.hwMode ?? 'constant',
       });
-      push(
-        `hull-white:${c}`,
-        'a',
-        r.params.a,
-        r.fit.standardErrors.a ?? NaN,
-        r.fit.conditionNumber,
-        r.rmseVol,
-        s.date,
-      );
-      if (typeof r.params.sigma === 'number')
+      // a, then σ (one value, or one per piece), each with its standard error.
+      const sigmas: [string, number][] =
+        typeof r.params.sigma === 'number'
+          ? [['sigma', r.params.sigma]]
+          : r.params.sigma.map((v, i): [string, number] => [`sigma${i}`, v]);
+      for (const [k, v] of [['a', r.params.a] as [string, number], ...sigmas])
         push(
           `hull-white:${c}`,
-          'sigma',
-          r.params.sigma,
-          r.fit.standardErrors.sigma ?? NaN,
+          k,
+          v,
+          r.fit.standardErrors[k] ?? NaN,
           r.fit.conditionNumber,
           r.rmseVol,
           s.date,
-        );
-      else
-        r.params.sigma.forEach((v, i) =>
-          push(
-            `hull-white:${c}`,
-            `sigma${i}`,
-            v,
-            r.fit.standardErrors[`sigma${i}`] ?? NaN,
-            r.fit.conditionNumber,
-            r.rmseVol,
-            s.date,
-          ),
         );
     }
   }
