@@ -1,3 +1,4 @@
+// @ts-check
 'use strict';
 /**
  * Electron main process: one locked-down window serving the built renderer (dist/desktop) from the
@@ -66,19 +67,15 @@ const handlers = createShellHandlers({
     if (mainWindow) mainWindow.setTitle(`${s.dirty ? '• ' : ''}${s.title} — Factor Triage`);
   },
   showOpenDialog: async ({ title, filters }) => {
-    const r = await dialog.showOpenDialog(mainWindow ?? undefined, {
-      title,
-      filters,
-      properties: ['openFile'],
-    });
+    /** @type {Electron.OpenDialogOptions} */
+    const o = { title, filters, properties: ['openFile'] };
+    const r = await (mainWindow ? dialog.showOpenDialog(mainWindow, o) : dialog.showOpenDialog(o));
     return r.canceled || r.filePaths.length === 0 ? null : r.filePaths[0];
   },
   showSaveDialog: async ({ title, defaultName, filters }) => {
-    const r = await dialog.showSaveDialog(mainWindow ?? undefined, {
-      title,
-      defaultPath: path.join(app.getPath('documents'), defaultName),
-      filters,
-    });
+    /** @type {Electron.SaveDialogOptions} */
+    const o = { title, defaultPath: path.join(app.getPath('documents'), defaultName), filters };
+    const r = await (mainWindow ? dialog.showSaveDialog(mainWindow, o) : dialog.showSaveDialog(o));
     return r.canceled || !r.filePath ? null : r.filePath;
   },
 });

@@ -74,7 +74,7 @@ describe('preload bridge', () => {
     off();
     expect(listeners.get(MENU_CHANNEL)).toEqual([]);
   });
-  it('satisfies the shared DesktopBridge type (type-checked with the shell tsconfig)', () => {
+  it('satisfies the shared DesktopBridge type, and the main process type-checks against the Electron API', () => {
     const tsc = path.join(root, 'node_modules', '.bin', 'tsc');
     const r = spawnSync(tsc, ['-p', path.join(root, 'app', 'tsconfig.json')], { encoding: 'utf8' });
     expect(r.stdout + r.stderr).toBe('');
