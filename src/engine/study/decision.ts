@@ -11,6 +11,9 @@
 import { fail, requireNonNegative, requirePositive } from '../errors.ts';
 import { normQuantile, normSf } from './stats.ts';
 
+/** Largest critical value reported: Φ⁻¹ beyond it is below double precision (Φ(−38) ≈ 3e−316). */
+export const Z_MAX = 38;
+
 /** Verdict on one factor. */
 export type Verdict = 'keep' | 'drop' | 'undecided';
 
@@ -189,7 +192,10 @@ export function decideLook(
   order.forEach((i, r) => {
     const row = rows[i]!;
     const level = alphaLook / (m - r);
-    const z = level > 0 ? normQuantile(1 - level / 2) : Infinity;
+    // Upper quantile from the lower tail: 1 − level/2 rounds to 1 for the tiny levels of early looks. A look that
+    // spends nothing (level 0 after underflow) cannot decide; its z is reported at the cap Z_MAX (finite, so the
+    // study file stays JSON).
+    const z = level > 0 ? Math.min(Z_MAX, -normQuantile(level / 2)) : Z_MAX;
     const passes = !stopped && level > 0 && row.pValue <= level && row.statistic > 0;
     if (!passes) stopped = true;
     out[i] = {
