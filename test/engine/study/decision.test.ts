@@ -159,3 +159,20 @@ describe('joint test', () => {
     );
   });
 });
+
+describe('extreme schedules', () => {
+  // Lan & DeMets (1983): with many looks the O'Brien–Fleming-type spending of the first look underflows to 0; such a
+  // look cannot decide, and its critical value stays finite so the study file remains valid JSON.
+  it('a look that spends nothing decides nothing and reports a finite z', () => {
+    const s = lookSchedule({ firstPaths: 1, finalPaths: 4096, alpha: 0.05, spending: 'obrienFleming' });
+    expect(s[0]!.increment).toBe(0);
+    const [d] = decideLook([est('a', 1e6, 1)], 1, s[0]!.increment);
+    expect(d!.verdict).toBe('undecided');
+    expect(Number.isFinite(d!.z)).toBe(true);
+  });
+  it('computes the Holm critical value accurately for tiny levels', () => {
+    const [d] = decideLook([est('a', 100, 1)], 1, 1e-12);
+    expect(d!.z).toBeCloseTo(-normQuantile(0.5e-12), 10);
+    expect(d!.z).toBeGreaterThan(7);
+  });
+});
