@@ -24,25 +24,31 @@ const GRZELAK_EQUITY: EquityQuote = {
   },
 };
 
+/** A flat 3 % DOM curve, Hull–White a = 0.08, σ = 1 %, and the H1-HW vol grid of `truth` under it (noiseless). */
+function h1hwMarket(truth: HestonParams, rhoSR: number) {
+  const curveSpec = flatCurveSpec('DOM', 0.03);
+  const curve = makeCurve(curveSpec);
+  const hw = { a: 0.08, sigma: 0.01 };
+  const eq = hestonGrid({
+    ccy: 'DOM',
+    spot: 100,
+    divYield: 0.01,
+    curve: curveSpec,
+    heston: truth,
+    expiries: EXPIRIES,
+    moneyness: MONEYNESS,
+    rates: { hw, rhoSR },
+  });
+  return { curveSpec, curve, hw, eq };
+}
+
 describe('Heston refit under Hull–White rates', () => {
   for (const [label, truth, rhoSR] of [
     ['ρ(S,r) = −0.4 and v0 < θ', { v0: 0.02, kappa: 1.2, theta: 0.05, sigma: 0.45, rho: -0.65 }, -0.4],
     ['ρ(S,r) = +0.5', { v0: 0.04, kappa: 2, theta: 0.035, sigma: 0.5, rho: -0.7 }, 0.5],
   ] as [string, HestonParams, number][]) {
     it(`recovers H1-HW parameters from noiseless H1-HW quotes with ${label}`, () => {
-      const curveSpec = flatCurveSpec('DOM', 0.03);
-      const curve = makeCurve(curveSpec);
-      const hw = { a: 0.08, sigma: 0.01 };
-      const eq = hestonGrid({
-        ccy: 'DOM',
-        spot: 100,
-        divYield: 0.01,
-        curve: curveSpec,
-        heston: truth,
-        expiries: EXPIRIES,
-        moneyness: MONEYNESS,
-        rates: { hw, rhoSR },
-      });
+      const { curveSpec, curve, hw, eq } = h1hwMarket(truth, rhoSR);
       const r = refitHestonUnderRates({
         name: 'EQD',
         equity: eq,
@@ -65,20 +71,8 @@ describe('Heston refit under Hull–White rates', () => {
   }
 
   it('on seeded noisy H1-HW quotes (0.1 vol point) lands within 3 reported standard errors (ρ(S,r) = −0.3)', () => {
-    const curveSpec = flatCurveSpec('DOM', 0.03);
-    const curve = makeCurve(curveSpec);
-    const hw = { a: 0.08, sigma: 0.01 };
     const truth = { v0: 0.03, kappa: 1.5, theta: 0.045, sigma: 0.5, rho: -0.6 };
-    const eq = hestonGrid({
-      ccy: 'DOM',
-      spot: 100,
-      divYield: 0.01,
-      curve: curveSpec,
-      heston: truth,
-      expiries: EXPIRIES,
-      moneyness: MONEYNESS,
-      rates: { hw, rhoSR: -0.3 },
-    });
+    const { curveSpec, curve, hw, eq } = h1hwMarket(truth, -0.3);
     const rng = seedrandom('h1hw-noise-1');
     const noisy: EquityQuote = {
       ...eq,
