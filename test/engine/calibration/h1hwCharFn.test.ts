@@ -103,6 +103,16 @@ describe('H1-HW characteristic function', () => {
 
 describe('H1-HW against Monte Carlo of the full Heston–Hull–White model (ρ(v,r) = 0)', () => {
   const paths = FULL ? 131072 : 32768;
+  /** Full-model Monte Carlo of the quotes: spot 100, no dividends, flat 2 % DOM curve, `paths` paths. */
+  const fullModelAt = (o: {
+    heston: HestonParams;
+    hw: HullWhiteParams;
+    rhoSR: number;
+    quotes: VolQuote[];
+    seed: string;
+    maxStep: number;
+  }) =>
+    fullModelVanillas({ name: 'X', currency: 'DOM', spot: 100, divYield: 0, curve: flat(0.02), paths, ...o });
   const cases: { name: string; heston: HestonParams; hw: HullWhiteParams; rhoSR: number; T: number }[] = [
     {
       name: 'ρ(S,r) = +0.3, T = 5',
@@ -122,17 +132,11 @@ describe('H1-HW against Monte Carlo of the full Heston–Hull–White model (ρ(
   for (const c of cases) {
     it(`agrees within 3 SE on the stated case ${c.name} (constructed here; no published value)`, () => {
       const quotes = quotesAt(c.T, 0.02, [70, 90, 100, 110, 130]);
-      const mc = fullModelVanillas({
-        name: 'X',
-        currency: 'DOM',
-        spot: 100,
-        divYield: 0,
-        curve: flat(0.02),
+      const mc = fullModelAt({
         heston: c.heston,
         hw: c.hw,
         rhoSR: c.rhoSR,
         quotes,
-        paths,
         seed: 'h1hw-vs-full',
         maxStep: 1 / 16,
       });
@@ -156,20 +160,7 @@ describe('H1-HW against Monte Carlo of the full Heston–Hull–White model (ρ(
       const heston = { v0: 0.05, kappa: 0.3, theta: 0.05, sigma: sv, rho: -0.3 };
       const hw = { a: 0.01, sigma: 0.01 };
       const quotes = quotesAt(10, 0.02, [40, 80, 100, 120, 180]);
-      const mc = fullModelVanillas({
-        name: 'X',
-        currency: 'DOM',
-        spot: 100,
-        divYield: 0,
-        curve: flat(0.02),
-        heston,
-        hw,
-        rhoSR: 0.6,
-        quotes,
-        paths,
-        seed: 'grzelak-case',
-        maxStep: 1 / 8,
-      });
+      const mc = fullModelAt({ heston, hw, rhoSR: 0.6, quotes, seed: 'grzelak-case', maxStep: 1 / 8 });
       const h1 = hestonModelPrices(heston, quotes, { rates: { hw, rhoSR: 0.6 }, terms: 1024 });
       const rows = quotes.map((q, i) => {
         const h1v = blackImpliedVol({
