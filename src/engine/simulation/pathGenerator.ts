@@ -44,7 +44,7 @@ import { hwB, hwIntegrals, hwStepFactor, makeHullWhiteTerms, type HullWhiteTerms
 import { makeGridLocalVol, type LocalVolFunction } from './localVol.ts';
 
 /** Andersen's (2008) switching level ψc between the quadratic and exponential branches. */
-export const QE_PSI_C = 1.5;
+const QE_PSI_C = 1.5;
 
 /** Options for preparing a variant. */
 export interface PrepareOptions {
@@ -281,6 +281,8 @@ export function prepareVariant(
     rate: RateState;
     quantoCorr: number;
     quantoVol: number;
+    /** corr(var, FX) of a foreign Heston equity: its variance drift changes with the measure too. */
+    varQuantoCorr: number;
     intVar?: Float64Array;
     intVol?: Float64Array;
     lv?: LocalVolFunction;
@@ -298,6 +300,7 @@ export function prepareVariant(
       );
     let quantoCorr = 0;
     let quantoVol = 0;
+    let varQuantoCorr = 0;
     if (e.currency !== v.domestic) {
       const fxi = fxByForeign.get(e.currency);
       if (fxi === undefined)
@@ -309,6 +312,7 @@ export function prepareVariant(
         );
       quantoCorr = corrOf(`eq:${e.name}`, `fx:${v.fx[fxi]!.name}`);
       quantoVol = v.fx[fxi]!.vol;
+      if (e.dynamics.kind === 'heston') varQuantoCorr = corrOf(`var:${e.name}`, `fx:${v.fx[fxi]!.name}`);
     }
     const st: EqState = {
       e,
@@ -318,6 +322,7 @@ export function prepareVariant(
       rate,
       quantoCorr,
       quantoVol,
+      varQuantoCorr,
     };
     const d = e.dynamics;
     if (d.kind === 'bs') {
@@ -473,6 +478,11 @@ export function prepareVariant(
           const wv = s.wv * n;
           const { kappa, theta, sigma, rho } = d;
           const qx = s.quantoCorr * s.quantoVol;
+          // Change of measure of the variance of a foreign equity (Girsanov, the same shift that gives the equity
+          // its quanto drift; Brigo & Mercurio 2006, Sec. 2.10, section number from memory):
+          // dv = [κ(θ − v) − ρ(v,X) σ σ_X √v] dt + σ √v dW_v under the domestic measure.
+          const vqx = s.varQuantoCorr * s.quantoVol * sigma;
+          const ekm = vqx === 0 ? 0 : (1 - Math.exp(-kappa * h)) / kappa;
           if (scheme === 'qe') {
             // Andersen (2008), Sec. 3.2.3–3.2.4: moments of V(t+h) | V(t), eqs. (17)–(18).
             const ek = Math.exp(-kappa * h);
@@ -493,7 +503,10 @@ export function prepareVariant(
             for (let p = 0; p < n; p++) {
               const V = vv[p]!;
               const zv = W[wv + p]!;
-              const mean = theta + (V - theta) * ek;
+              // Extra drift −ρ(v,X) σ σ_X √v frozen at the step's start and carried by e^{−κ(h−s)} (an
+              // approximation of the conditional mean, exact as h → 0; zero for a domestic equity or ρ(v,X) = 0).
+              const m0 = theta + (V - theta) * ek - vqx * Math.sqrt(V) * ekm;
+              const mean = m0 > 1e-300 ? m0 : 1e-300;
               const s2 = V * c1 + c2;
               const psi = s2 / (mean * mean);
               let Vn: number;
@@ -522,6 +535,8 @@ export function prepareVariant(
               // Residual of the equity driver given its own variance driver: R = W_S − ρ W_v ~ N(0, 1 − ρ²).
               const R = W[wo + p]! - rho * zv;
               // Quanto drift −ρ(S,X) σ_X ∫√v dt ≈ −ρ σ_X √(h ∫v) (zero for a domestic equity).
+              // The variance's extra drift needs no term here: K0 is replaced by the martingale correction k0,
+              // computed from the QE law of V' with the shifted mean, so E[S'/S] stays exact.
               const y = ls[p]! + sr[p]! - q + k0 + K1 * V + K2 * Vn + siv * R - qx * sqh * siv;
               ls[p] = y;
               out[o1 + p] = Math.exp(y);
@@ -538,7 +553,7 @@ export function prepareVariant(
               const y = ls[p]! + sr[p]! - q - 0.5 * vp * h + sv * W[wo + p]! - qx * Math.sqrt(vp) * h;
               ls[p] = y;
               out[o1 + p] = Math.exp(y);
-              const Vn = V + kappa * (theta - vp) * h + sigma * sv * W[wv + p]!;
+              const Vn = V + (kappa * (theta - vp) - vqx * Math.sqrt(vp)) * h + sigma * sv * W[wv + p]!;
               vv[p] = Vn;
               vOut[o1 + p] = Vn > 0 ? Vn : 0;
             }
