@@ -4,3 +4,4 @@ export * from './quadrature.ts';
 export * from './roots.ts';
 export * from './linalg.ts';
 export * from './search.ts';
+export * from './detMath.ts';
