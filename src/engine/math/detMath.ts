@@ -680,7 +680,7 @@ const PIO2_FIXED: bigint = BigInt('0x' + PI_OVER_4_HEX.slice(0, 64)) << 1n;
 const FRAC_MASK = (1n << FRAC_BITS) - 1n;
 const FRAC_HALF = 1n << (FRAC_BITS - 1n);
 /** 2^−(FRAC_BITS + PIO2_SHIFT) = 2^−448. */
-const SCALE_DOWN = POW2[-448 + POW2_OFFSET]!;
+const SCALE_DOWN = POW2[-Number(FRAC_BITS + PIO2_SHIFT) + POW2_OFFSET]!;
 
 /**
  * Reduction of x by π/2: returns n with x = n·π/2 + (y0 + y1), |y0 + y1| ≤ ~π/4, writing y0 and y1 into `out`
