@@ -98,7 +98,23 @@ describe('browser build', () => {
       await app.shot(shots, 'triage');
       await app.screen('fit');
       await app.page.waitForSelector('.variant-list');
+      // The richest variant opens: a smile per expiry for the equity, the rate vols on their own chart.
+      await app.page.waitForSelector('[data-testid=smile-ALDR]');
+      expect(await app.page.textContent('[data-testid=ratevols-DOM]')).toMatch(/normal vol \(bp\)/);
+      expect(
+        await app.page.$$eval('[data-testid=fit-residuals] .group-head', (r) => r.length),
+      ).toBeGreaterThan(2);
+      expect(await app.page.textContent('[data-testid=fit-residuals]')).toMatch(/not repriced \(see note\)/);
       await app.shot(shots, 'fit');
+      // Legend buttons bring one expiry forward from the keyboard.
+      await app.page.focus('[data-testid=smile-ALDR] figcaption button');
+      await app.page.keyboard.press('Enter');
+      expect(await app.page.getAttribute('[data-testid=smile-ALDR] figcaption button', 'aria-pressed')).toBe(
+        'true',
+      );
+      // A variant with the rates on the curve says so instead of drawing an empty rate chart.
+      await app.page.click('.variant-list li:nth-child(2) button');
+      expect(await app.page.textContent('[data-testid=no-rate-vols]')).toMatch(/no cap or swaption vols/);
       // Stability across the market dates, recalibrated in the worker.
       await app.page.click('[data-testid=run-stability]');
       await app.page.waitForSelector('[data-testid=stability-report]', { timeout: 60_000 });

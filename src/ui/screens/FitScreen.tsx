@@ -6,24 +6,12 @@
 import { useEffect, useState } from 'react';
 import type { StabilityReport } from '../../engine/calibration/calibrationStability.ts';
 import type { LadderVariant, SavedStudy } from '../../engine/study/types.ts';
+import type { MarketSnapshot } from '../../engine/market/types.ts';
 import { errorText, useApp } from '../state/appContext.ts';
 import { LineChart } from '../components/charts.tsx';
+import { SmileChart, type SmileCurve } from '../components/SmileChart.tsx';
+import { groupFit, rmseOf, type FitLine, type GroupedFit } from './fitGroups.ts';
 import { num, pct, secs } from '../components/format.ts';
-
-interface ParsedInstrument {
-  group: string;
-  x: number | null;
-}
-
-/** Reads an expiry and a strike (or moneyness) out of an instrument label when it carries them. */
-function parseInstrument(label: string): ParsedInstrument {
-  const t = label.match(/(?:T\s*=\s*|expiry\s*)([\d.]+)\s*y?/i) ?? label.match(/\b([\d.]+)\s*y\b/i);
-  const k = label.match(/(?:K\s*=\s*|strike\s*|m\s*=\s*|moneyness\s*)([\d.]+%?)/i);
-  const name = label.match(/^([A-Za-z][A-Za-z0-9/_:-]*)/)?.[1] ?? '';
-  const group = t ? `${name} ${t[1]}y`.trim() : name || 'instruments';
-  const x = k ? Number(k[1]!.replace('%', '')) / (k[1]!.endsWith('%') ? 100 : 1) : null;
-  return { group, x };
-}
 
 function paramsOf(v: LadderVariant): { name: string; value: number }[] {
   const out: { name: string; value: number }[] = [];
@@ -95,7 +83,7 @@ export function FitScreen() {
           )}
         </aside>
         <section className="editor">
-          <VariantFit v={v} />
+          <VariantFit v={v} market={s.input.markets[0]} />
           <Stability s={s} />
           <SeriesStability />
         </section>
@@ -104,60 +92,162 @@ export function FitScreen() {
   );
 }
 
-function VariantFit(props: { v: LadderVariant }) {
-  const { v } = props;
+/** Units of one rate group, from the quote type of the pricing snapshot (normal vols in bp, lognormal in %). */
+function rateUnits(quoteType: 'normal' | 'lognormal' | null): {
+  axis: string;
+  show: (v: number) => string;
+  tick: (v: number) => string;
+  error: string;
+  errorScale: number;
+} {
+  return quoteType === 'lognormal'
+    ? {
+        axis: 'lognormal vol',
+        show: (v) => pct(v, 2),
+        tick: (v) => pct(v, 1),
+        error: 'vol bp',
+        errorScale: 1e4,
+      }
+    : {
+        axis: quoteType === 'normal' ? 'normal vol (bp)' : 'vol (bp, quote type not in the snapshot)',
+        show: (v) => `${(v * 1e4).toFixed(1)} bp`,
+        tick: (v) => (v * 1e4).toFixed(0),
+        error: 'bp',
+        errorScale: 1e4,
+      };
+}
+
+const NOTE_TEXT: Record<Exclude<FitLine['note'], 'repriced'>, string> = {
+  notSelected: 'not repriced (see note)',
+  noneInStudy: 'none in this study (see note)',
+  swaption: 'closed form only (see note)',
+  checkOnly: '',
+};
+
+function McCell(props: { line: FitLine; ccy: string }) {
+  const { line } = props;
+  if (line.mc) {
+    const far = Math.abs(line.mc.value) > 3 * line.mc.se;
+    return (
+      <td
+        className={`num ${far ? 'bad' : ''}`}
+        title={far ? 'more than 3 standard errors from the market price' : undefined}
+      >
+        {num(line.mc.value, 3)} ± {num(line.mc.se, 2)} {props.ccy}
+      </td>
+    );
+  }
+  return <td className="num hint">{NOTE_TEXT[line.note as Exclude<FitLine['note'], 'repriced'>]}</td>;
+}
+
+function smileCurves(g: GroupedFit['equities'][number]): SmileCurve[] {
+  const xOf = (l: FitLine): number => l.moneyness ?? l.parsed.strike ?? NaN;
+  return g.expiries.map((e) => {
+    const fittedLines = e.lines.filter((l) => l.note !== 'checkOnly' && Number.isFinite(xOf(l)));
+    const checks = e.lines.filter((l) => l.note === 'checkOnly' && Number.isFinite(xOf(l)));
+    return {
+      key: String(e.expiry),
+      label: `${num(e.expiry, 3)}y`,
+      quoted: [...fittedLines, ...checks].map((l) => ({
+        x: xOf(l),
+        y: l.marketVol,
+        note: `${l.label}: quoted ${pct(l.marketVol, 2)}, fitted ${pct(l.modelVol, 2)}`,
+      })),
+      fitted: fittedLines.map((l) => ({ x: xOf(l), y: l.modelVol })),
+      checks: checks.map((l) => ({
+        x: xOf(l),
+        y: l.modelVol,
+        note: `${l.label}: model ${pct(l.modelVol, 2)} (not fitted)`,
+      })),
+    };
+  });
+}
+
+function VariantFit(props: { v: LadderVariant; market: MarketSnapshot | undefined }) {
+  const { v, market } = props;
   const fit = v.calibration.fit;
-  const parsed = fit.map((f) => ({ f, p: parseInstrument(f.instrument) }));
-  const groups = Array.from(new Set(parsed.map((x) => x.p.group)));
-  const byStrike = parsed.every((x) => x.p.x !== null) && groups.length <= 12;
+  const grouped = groupFit(fit, market);
   const params = paramsOf(v);
+  const stochasticRates = Object.entries(v.spec.rates)
+    .filter(([, r]) => r.hw)
+    .map(([c]) => c);
+  const hasMc = fit.some((f) => f.mcError !== null);
+  const notes = new Set(
+    [
+      ...grouped.equities.flatMap((e) => e.expiries.flatMap((x) => x.lines)),
+      ...grouped.rates.flatMap((r) => r.lines),
+    ].map((l) => l.note),
+  );
   return (
     <>
       <section className="panel">
         <h2>{v.label}: quoted and fitted</h2>
         {fit.length === 0 ? (
           <p className="empty">This variant has no calibration instruments (it reads the curve only).</p>
-        ) : byStrike ? (
-          <div className="chart-grid">
-            {groups.map((g) => {
-              const rows = parsed.filter((x) => x.p.group === g);
-              return (
-                <LineChart
-                  key={g}
-                  title={g}
-                  xLabel="strike"
-                  yLabel="vol"
-                  yFormat={(y) => pct(y, 1)}
-                  height={200}
-                  series={[
-                    {
-                      name: 'quoted',
-                      style: 'markers',
-                      tone: 1,
-                      points: rows.map((r) => ({ x: r.p.x!, y: r.f.marketVol })),
-                    },
-                    { name: 'fitted', tone: 0, points: rows.map((r) => ({ x: r.p.x!, y: r.f.modelVol })) },
-                  ]}
-                />
-              );
-            })}
-          </div>
         ) : (
-          <LineChart
-            title="Quoted and fitted vol per instrument"
-            xLabel="instrument (table order)"
-            yLabel="vol"
-            yFormat={(y) => pct(y, 1)}
-            series={[
-              {
-                name: 'quoted',
-                style: 'markers',
-                tone: 1,
-                points: fit.map((f, i) => ({ x: i + 1, y: f.marketVol })),
-              },
-              { name: 'fitted', tone: 0, points: fit.map((f, i) => ({ x: i + 1, y: f.modelVol })) },
-            ]}
-          />
+          <div
+            style={{
+              display: 'grid',
+              gap: 12,
+              gridTemplateColumns:
+                grouped.equities.length > 0 ? 'minmax(0, 3fr) minmax(0, 2fr)' : 'minmax(0, 1fr)',
+            }}
+          >
+            {grouped.equities.map((e) => (
+              <SmileChart
+                key={e.name}
+                testId={`smile-${e.name}`}
+                title={`${e.name} smile per expiry`}
+                xLabel={e.spot !== null ? `moneyness K / S₀ (S₀ = ${num(e.spot, 6)})` : 'strike'}
+                yLabel="implied vol"
+                xFormat={(x) => (e.spot !== null ? x.toFixed(2) : num(x, 4))}
+                yFormat={(y) => pct(y, 0)}
+                width={470}
+                height={310}
+                curves={smileCurves(e)}
+              />
+            ))}
+            <div>
+              {grouped.rates.length > 0 ? (
+                grouped.rates.map((r) => {
+                  const u = rateUnits(r.quoteType);
+                  const cal = r.lines.filter((l) => !l.parsed.monteCarlo);
+                  return (
+                    <SmileChart
+                      key={r.currency}
+                      testId={`ratevols-${r.currency}`}
+                      title={`${r.currency} ${cal[0]?.parsed.rateInstrument ?? 'rate'} vols by expiry`}
+                      xLabel="expiry (years)"
+                      yLabel={u.axis}
+                      xFormat={(x) => num(x, 3)}
+                      yFormat={u.tick}
+                      width={grouped.equities.length > 0 ? 310 : 560}
+                      height={grouped.equities.length > 0 ? 310 : 260}
+                      curves={[
+                        {
+                          key: r.currency,
+                          label: `${r.currency} (${r.quoteType ?? 'type unknown'})`,
+                          quoted: cal.map((l) => ({
+                            x: l.parsed.expiry ?? NaN,
+                            y: l.marketVol,
+                            note: `${l.label}: quoted ${u.show(l.marketVol)}, fitted ${u.show(l.modelVol)}`,
+                          })),
+                          fitted: cal.map((l) => ({ x: l.parsed.expiry ?? NaN, y: l.modelVol })),
+                        },
+                      ]}
+                    />
+                  );
+                })
+              ) : (
+                <div className="empty" data-testid="no-rate-vols">
+                  <strong>No rate vols in this fit.</strong>{' '}
+                  {stochasticRates.length > 0
+                    ? `This variant simulates ${stochasticRates.join(', ')} rates, but its fit carries no cap or swaption rows.`
+                    : 'Rates follow the discount curve in this variant (no Hull–White factor), so no cap or swaption vols are fitted. Pick a variant with a stochastic rate to see them.'}
+                </div>
+              )}
+            </div>
+          </div>
         )}
       </section>
       <div className="two-even">
@@ -195,36 +285,133 @@ function VariantFit(props: { v: LadderVariant }) {
         <section className="panel">
           <h2>Residuals</h2>
           <p className="hint">
-            RMSE {num(v.calibration.rmseVol * 1e4, 3)} vol bp, worst{' '}
-            {num(v.calibration.maxAbsVolError * 1e4, 3)} vol bp. The last column reprices each instrument by
-            Monte Carlo on the study's paths (evidence that the comparison is fair).
+            Error = fitted − quoted. The last column reprices the instrument by Monte Carlo on the study's own
+            paths, minus its market price (evidence that every variant is compared on a fair footing; red:
+            beyond 3 standard errors).
           </p>
           <div className="scroll-y">
-            <table className="data">
+            <table className="data" data-testid="fit-residuals">
               <thead>
                 <tr>
                   <th>Instrument</th>
                   <th className="num">Quoted</th>
                   <th className="num">Fitted</th>
-                  <th className="num">Error (vol bp)</th>
+                  <th className="num">Error</th>
                   <th className="num">MC − market</th>
                 </tr>
               </thead>
-              <tbody>
-                {fit.map((f, i) => (
-                  <tr key={i}>
-                    <td>{f.instrument}</td>
-                    <td className="num">{pct(f.marketVol, 2)}</td>
-                    <td className="num">{pct(f.modelVol, 2)}</td>
-                    <td className="num">{num((f.modelVol - f.marketVol) * 1e4, 3)}</td>
-                    <td className="num">
-                      {f.mcError ? `${num(f.mcError.value, 3)} ± ${num(f.mcError.se, 2)}` : '—'}
-                    </td>
+              {grouped.equities.flatMap((e) => {
+                const ccy = market?.equities[e.name]?.currency ?? '';
+                return e.expiries.map((x) => {
+                  const rm = rmseOf(x.lines);
+                  return (
+                    <tbody key={`${e.name}|${x.expiry}`}>
+                      <tr className="group-head">
+                        <th colSpan={5} scope="rowgroup">
+                          {e.name} · expiry {num(x.expiry, 3)}y{' '}
+                          <span className="hint">
+                            vols in %, error in vol bp
+                            {Number.isFinite(rm) ? ` · RMSE ${num(rm * 1e4, 3)} vol bp` : ''}
+                          </span>
+                        </th>
+                      </tr>
+                      {x.lines.map((l) => (
+                        <tr key={l.label}>
+                          <td>
+                            K {num(l.parsed.strike, 6)}
+                            {l.moneyness !== null ? ` (${l.moneyness.toFixed(3)} S₀)` : ''}
+                            {l.note === 'checkOnly' && <span className="hint"> · check, not fitted</span>}
+                            {l.parsed.monteCarlo && l.note !== 'checkOnly' && (
+                              <span className="hint"> · repriced vanilla</span>
+                            )}
+                          </td>
+                          <td className="num">{pct(l.marketVol, 2)}</td>
+                          <td className="num">{pct(l.modelVol, 2)}</td>
+                          <td className="num">{num((l.modelVol - l.marketVol) * 1e4, 3)}</td>
+                          <McCell line={l} ccy={ccy} />
+                        </tr>
+                      ))}
+                    </tbody>
+                  );
+                });
+              })}
+              {grouped.rates.map((r) => {
+                const u = rateUnits(r.quoteType);
+                const rm = rmseOf(r.lines);
+                return (
+                  <tbody key={`rate|${r.currency}`}>
+                    <tr className="group-head">
+                      <th colSpan={5} scope="rowgroup">
+                        {r.currency} rate vols{' '}
+                        <span className="hint">
+                          {r.quoteType ?? 'quote type unknown'}, vols{' '}
+                          {r.quoteType === 'lognormal' ? 'in %' : 'in bp'}, error in {u.error}
+                          {Number.isFinite(rm) ? ` · RMSE ${num(rm * u.errorScale, 3)} ${u.error}` : ''}
+                        </span>
+                      </th>
+                    </tr>
+                    {r.lines.map((l) => (
+                      <tr key={l.label}>
+                        <td>
+                          {l.parsed.rateInstrument} {num(l.parsed.expiry, 3)}y × {num(l.parsed.tenor, 3)}y
+                          {l.parsed.strike !== null ? ` K ${pct(l.parsed.strike, 3)}` : ''}
+                          {l.parsed.monteCarlo && <span className="hint"> · repriced</span>}
+                        </td>
+                        <td className="num">{u.show(l.marketVol)}</td>
+                        <td className="num">{u.show(l.modelVol)}</td>
+                        <td className="num">{num((l.modelVol - l.marketVol) * u.errorScale, 3)}</td>
+                        <McCell line={l} ccy={r.currency} />
+                      </tr>
+                    ))}
+                  </tbody>
+                );
+              })}
+              {grouped.other.length > 0 && (
+                <tbody>
+                  <tr className="group-head">
+                    <th colSpan={5} scope="rowgroup">
+                      Other instruments <span className="hint">vols in %, error in vol bp</span>
+                    </th>
                   </tr>
-                ))}
-              </tbody>
+                  {grouped.other.map((l) => (
+                    <tr key={l.label}>
+                      <td>{l.label}</td>
+                      <td className="num">{pct(l.marketVol, 2)}</td>
+                      <td className="num">{pct(l.modelVol, 2)}</td>
+                      <td className="num">{num((l.modelVol - l.marketVol) * 1e4, 3)}</td>
+                      <McCell line={l} ccy="" />
+                    </tr>
+                  ))}
+                </tbody>
+              )}
             </table>
           </div>
+          <ul className="tight hint" data-testid="mc-notes">
+            {!hasMc && (
+              <li>
+                None in this study: it carries no Monte Carlo reprice for this variant (the fairness check did
+                not run, or the study was saved without it), so only the analytic fit can be shown.
+              </li>
+            )}
+            {notes.has('notSelected') && (
+              <li>
+                Not repriced: the study reprices a few vanillas per equity (three strikes around the forward
+                at its last expiries) on its paths, not every calibration quote.
+              </li>
+            )}
+            {notes.has('swaption') && (
+              <li>
+                Closed form only: swaptions are fitted by the Jamshidian formula and not repriced on the
+                paths.
+              </li>
+            )}
+            {notes.has('checkOnly') && (
+              <li>
+                Check, not fitted: a vanilla this variant was not calibrated to, repriced to show how the
+                model extrapolates (drawn as a dashed circle on the smile).
+              </li>
+            )}
+          </ul>
         </section>
       </div>
     </>
