@@ -115,6 +115,11 @@ describe('browser build', () => {
       // A variant with the rates on the curve says so instead of drawing an empty rate chart.
       await app.page.click('.variant-list li:nth-child(2) button');
       expect(await app.page.textContent('[data-testid=no-rate-vols]')).toMatch(/no cap or swaption vols/);
+      // The demo study carries three snapshots: verdicts and parameters per date, side by side.
+      expect(await app.page.textContent('[data-testid=study-stability]')).toMatch(
+        /Verdicts per date.*(holds|changes)/s,
+      );
+      await app.shot(shots, 'fit-dates', '[data-testid=study-stability]');
       // Stability across the market dates, recalibrated in the worker.
       await app.page.click('[data-testid=run-stability]');
       await app.page.waitForSelector('[data-testid=stability-report]', { timeout: 60_000 });

@@ -418,82 +418,133 @@ function VariantFit(props: { v: LadderVariant; market: MarketSnapshot | undefine
   );
 }
 
+/** Verdict words as people read them. */
+const VERDICT_WORD: Record<string, string> = {
+  keep: 'keep',
+  drop: 'drop',
+  undecided: 'undecided',
+  required: 'required',
+  notNeeded: 'not needed',
+};
+
 function Stability(props: { s: SavedStudy }) {
   const st = props.s.results.stability;
-  const variants = Array.from(new Set(st.flatMap((d) => Object.keys(d.params))));
-  const [picked, setVariant] = useState<string | null>(null);
-  if (st.length === 0)
+  const models = Array.from(new Set(st.flatMap((d) => Object.keys(d.params))));
+  const [picked, setModel] = useState<string | null>(null);
+  if (st.length < 2)
     return (
-      <section className="panel">
+      <section className="panel" data-testid="study-stability">
         <h2>Stability across dates</h2>
         <p className="empty">
-          This study was run on one snapshot; add more dates on the Market screen to measure parameter
-          stability.
+          This study was run on {st.length === 1 ? `one snapshot (${st[0]!.date})` : 'one snapshot'}, so there
+          is nothing to compare yet: add more market dates on the Market screen and run the study again to see
+          whether its parameters and verdicts hold from one date to the next.
         </p>
       </section>
     );
-  const variant = picked !== null && variants.includes(picked) ? picked : (variants[0] ?? '');
-  const names = Array.from(new Set(st.flatMap((d) => Object.keys(d.params[variant] ?? {}))));
+  const model = picked !== null && models.includes(picked) ? picked : (models[0] ?? '');
+  const names = Array.from(new Set(st.flatMap((d) => Object.keys(d.params[model] ?? {}))));
   const factors = Array.from(new Set(st.flatMap((d) => Object.keys(d.verdicts))));
+  const holds = (f: string): boolean => new Set(st.map((d) => d.verdicts[f])).size === 1;
+  const spread = (n: string): number => {
+    const xs = st
+      .map((d) => d.params[model]?.[n])
+      .filter((x): x is number => x !== undefined && Number.isFinite(x));
+    if (xs.length < 2) return NaN;
+    const mean = xs.reduce((a, b) => a + b, 0) / xs.length;
+    return mean !== 0 ? (Math.max(...xs) - Math.min(...xs)) / Math.abs(mean) : NaN;
+  };
   return (
-    <section className="panel">
-      <h2>Stability across dates</h2>
-      <div className="row-fields">
-        <label>
-          Variant{' '}
-          <select value={variant} onChange={(e) => setVariant(e.target.value)}>
-            {variants.map((x) => (
-              <option key={x}>{x}</option>
-            ))}
-          </select>
-        </label>
-      </div>
+    <section className="panel" data-testid="study-stability">
+      <h2>Stability across the study's {st.length} dates</h2>
+      <p className="hint">
+        The study re-ran its calibration and verdicts on every snapshot it carries. A verdict that changes
+        from one date to the next rests on market detail; a parameter that moves a lot while the fit stays
+        good is poorly identified.
+      </p>
       <div className="two-even">
-        <div className="scroll-x">
+        <div>
+          <h3>Verdicts per date</h3>
           <table className="data">
             <thead>
               <tr>
-                <th>Date</th>
-                {factors.map((f) => (
-                  <th key={f}>{f}</th>
+                <th>Factor</th>
+                {st.map((d) => (
+                  <th key={d.date}>{d.date}</th>
                 ))}
-                {names.map((n) => (
-                  <th key={n} className="num">
-                    {n}
-                  </th>
-                ))}
+                <th>Across dates</th>
               </tr>
             </thead>
             <tbody>
-              {st.map((d) => (
-                <tr key={d.date}>
-                  <td>{d.date}</td>
-                  {factors.map((f) => (
-                    <td key={f}>{d.verdicts[f] ?? '—'}</td>
-                  ))}
-                  {names.map((n) => (
-                    <td key={n} className="num">
-                      {num(d.params[variant]?.[n], 4)}
+              {factors.map((f) => (
+                <tr key={f}>
+                  <td>{f}</td>
+                  {st.map((d) => (
+                    <td key={d.date}>
+                      {d.verdicts[f] ? (VERDICT_WORD[d.verdicts[f]!] ?? d.verdicts[f]) : 'not run'}
                     </td>
                   ))}
+                  <td className={holds(f) ? '' : 'bad'}>{holds(f) ? 'holds' : 'changes'}</td>
                 </tr>
               ))}
             </tbody>
           </table>
         </div>
-        <LineChart
-          title="Parameters relative to their first date"
-          xLabel="date (order)"
-          yLabel="value / first value"
-          series={names.map((n) => {
-            const first = st.find((d) => d.params[variant]?.[n] !== undefined)?.params[variant]?.[n] ?? NaN;
-            return {
-              name: n,
-              points: st.map((d, i) => ({ x: i + 1, y: (d.params[variant]?.[n] ?? NaN) / first })),
-            };
-          })}
-        />
+        <div>
+          <h3>
+            <label>
+              Parameters of{' '}
+              <select value={model} onChange={(e) => setModel(e.target.value)} data-testid="stability-model">
+                {models.map((x) => (
+                  <option key={x}>{x}</option>
+                ))}
+              </select>
+            </label>
+          </h3>
+          <table className="data">
+            <thead>
+              <tr>
+                <th>Parameter</th>
+                {st.map((d) => (
+                  <th key={d.date} className="num">
+                    {d.date}
+                  </th>
+                ))}
+                <th className="num" title="(largest − smallest) / |mean| over the dates">
+                  Range / mean
+                </th>
+              </tr>
+            </thead>
+            <tbody>
+              {names.map((n) => (
+                <tr key={n}>
+                  <td>{n}</td>
+                  {st.map((d) => (
+                    <td key={d.date} className="num">
+                      {num(d.params[model]?.[n], 4)}
+                    </td>
+                  ))}
+                  <td className="num">{pct(spread(n), 1)}</td>
+                </tr>
+              ))}
+            </tbody>
+          </table>
+        </div>
       </div>
+      <LineChart
+        title={`${model}: each parameter relative to its value on ${st[0]!.date}`}
+        xLabel="snapshot (1 = pricing date)"
+        yLabel="value / first value"
+        height={200}
+        xFormat={(x) => (Number.isInteger(x) ? String(x) : '')}
+        series={names.map((n) => {
+          const first = st.find((d) => d.params[model]?.[n] !== undefined)?.params[model]?.[n] ?? NaN;
+          return {
+            name: n,
+            points: st.map((d, i) => ({ x: i + 1, y: (d.params[model]?.[n] ?? NaN) / first })),
+          };
+        })}
+      />
     </section>
   );
 }
@@ -551,7 +602,7 @@ function SeriesStability() {
         </p>
       )}
       {report && (
-        <div className="two-even" data-testid="stability-report">
+        <div data-testid="stability-report">
           <table className="data">
             <thead>
               <tr>
@@ -578,7 +629,9 @@ function SeriesStability() {
           </table>
           <LineChart
             title="Each parameter relative to its first date"
-            xLabel="date (order)"
+            height={200}
+            xFormat={(x) => (Number.isInteger(x) ? String(x) : '')}
+            xLabel="market date (order)"
             yLabel="value / first value"
             series={report.paths.map((p) => ({
               name: `${p.model} ${p.parameter}`,
