@@ -160,12 +160,14 @@ export function log(x: number): number {
     hx = I32[HI]!;
   }
   if (hx >= 0x7ff00000) return x + x;
-  k += (hx >> 20) - 1023;
+  const ke = (hx >> 20) - 1023;
   hx &= 0x000fffff;
   const i0 = (hx + 0x95f64) & 0x100000;
-  I32[HI] = hx | (i0 ^ 0x3ff00000); // normalise x or x/2
-  x = F64[0]!;
-  k += i0 >> 20;
+  // fdlibm sets the exponent field so that x becomes x·2^−(ke + i0/2^20) in [√2/2, √2); the product by that power
+  // of two is the same value, exactly, without a second pass through the word view.
+  const kk = ke + (i0 >> 20);
+  x *= POW2[-kk + POW2_OFFSET]!;
+  k += kk;
   const f = x - 1;
   if ((0x000fffff & (2 + hx)) < 3) {
     // −2^−20 ≤ f < 2^−20
@@ -1034,4 +1036,35 @@ export function hypot(x: number, y: number): number {
   const rrLo = ah * ah - rr + 2 * ah * al + al * al;
   const res = s - rr - rrLo + sLo;
   return (r + res / (2 * r)) * up;
+}
+
+/**
+ * Euclidean norm √(Σ xᵢ²) of any number of values without overflow or underflow, the same bits everywhere: scaled by
+ * a power of two near the largest |xᵢ| (exact), squares summed in index order, one square root (IEEE, correctly
+ * rounded), scaled back. Relative error below (n/2 + 1) ulp (common practice). +∞ if any value is infinite, else NaN
+ * if any is NaN; 0 for no values.
+ */
+export function hypotOf(values: readonly number[]): number {
+  const n = values.length;
+  let m = 0;
+  let nan = false;
+  for (let i = 0; i < n; i++) {
+    const a = Math.abs(values[i]!);
+    if (a === Infinity) return Infinity;
+    if (a !== a) nan = true;
+    else if (a > m) m = a;
+  }
+  if (nan) return NaN;
+  if (m === 0) return 0;
+  F64[0] = m;
+  let e = ((I32[HI]! >> 20) & 0x7ff) - 1023;
+  if (e === -1023) e = -1022; // subnormal largest value: 2^1022 scales it up exactly
+  if (e > 1000) e = 1000;
+  const down = POW2[-e + POW2_OFFSET]!;
+  let s = 0;
+  for (let i = 0; i < n; i++) {
+    const a = values[i]! * down;
+    s += a * a;
+  }
+  return Math.sqrt(s) * POW2[e + POW2_OFFSET]!;
 }

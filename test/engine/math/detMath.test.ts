@@ -6,6 +6,7 @@ import {
   exp,
   expm1,
   hypot,
+  hypotOf,
   log,
   log1p,
   NPIO2_HW,
@@ -212,6 +213,31 @@ describe('detMath agrees with the runtime within 1 ulp on seeded grids (fdlibm b
       (u() - 0.5) * 10 ** (600 * u() - 300),
     ];
     worstUlp2('hypot', hypot, Math.hypot, wide, N, 2);
+  });
+});
+
+describe('hypotOf: norm of many values', () => {
+  it('is exact on scaled Pythagorean quadruples (1² + 2² + 2² = 3², 2² + 3² + 6² = 7²) and handles ∞, NaN, empty', () => {
+    for (const k of [-1060, -300, 0, 300, 1010]) {
+      const s = 2 ** k;
+      expect(hypotOf([s, 2 * s, 2 * s])).toBe(3 * s);
+      expect(hypotOf([2 * s, -3 * s, 6 * s])).toBe(7 * s);
+    }
+    expect(hypotOf([])).toBe(0);
+    expect(hypotOf([NaN, Infinity])).toBe(Infinity);
+    expect(hypotOf([1, NaN])).toBeNaN();
+    expect(hypotOf([-5])).toBe(5);
+  });
+
+  it('agrees with the two-argument hypot within 1 ulp (both within 1 ulp of the exact norm)', () => {
+    const u = uniforms(19);
+    worstUlp2(
+      'hypotOf',
+      (x, y) => hypotOf([x, y]),
+      hypot,
+      () => [(u() - 0.5) * 10 ** (600 * u() - 300), (u() - 0.5) * 10 ** (600 * u() - 300)],
+      N / 4,
+    );
   });
 });
 
