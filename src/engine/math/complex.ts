@@ -4,6 +4,7 @@
  * the argument lies in (−π, π], and on the cut the sign of a zero imaginary part picks the side
  * (im = +0 gives arg = +π, im = −0 gives arg = −π), as in C99 Annex G.
  */
+import { atan2, cos, exp as detExp, hypot, log as detLog, sin } from './detMath.ts';
 export class Complex {
   readonly re: number;
   readonly im: number;
@@ -19,7 +20,7 @@ export class Complex {
 
   /** r·e^{iθ}. */
   static fromPolar(r: number, theta: number): Complex {
-    return new Complex(r * Math.cos(theta), r * Math.sin(theta));
+    return new Complex(r * cos(theta), r * sin(theta));
   }
 
   static readonly ZERO = new Complex(0, 0);
@@ -72,14 +73,14 @@ export class Complex {
 
   /** e^z = e^{re}(cos im + i sin im). */
   exp(): Complex {
-    const m = Math.exp(this.re);
+    const m = detExp(this.re);
     if (this.im === 0) return new Complex(m, this.im);
-    return new Complex(m * Math.cos(this.im), m * Math.sin(this.im));
+    return new Complex(m * cos(this.im), m * sin(this.im));
   }
 
   /** Principal logarithm: ln|z| + i·arg z, arg in (−π, π]. log(0) = −∞ + i·arg. */
   log(): Complex {
-    return new Complex(Math.log(this.abs()), this.arg());
+    return new Complex(detLog(this.abs()), this.arg());
   }
 
   /**
@@ -97,12 +98,12 @@ export class Complex {
 
   /** Modulus |z|, computed without overflow. */
   abs(): number {
-    return Math.hypot(this.re, this.im);
+    return hypot(this.re, this.im);
   }
 
   /** Principal argument in (−π, π]. */
   arg(): number {
-    return Math.atan2(this.im, this.re);
+    return atan2(this.im, this.re);
   }
 
   /** Principal power z^w = exp(w·log z); 0^w = 0 for re(w) > 0, 1 for w = 0. */

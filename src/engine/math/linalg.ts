@@ -207,9 +207,9 @@ export function nearestCorrelation(
     let diffY = 0;
     for (let i = 0; i < n; i++)
       for (let j = 0; j < n; j++) {
-        diffXY += (yNew[i]![j]! - x[i]![j]!) ** 2;
-        diffY += (yNew[i]![j]! - y[i]![j]!) ** 2;
-        normY += yNew[i]![j]! ** 2;
+        diffXY += (yNew[i]![j]! - x[i]![j]!) * (yNew[i]![j]! - x[i]![j]!);
+        diffY += (yNew[i]![j]! - y[i]![j]!) * (yNew[i]![j]! - y[i]![j]!);
+        normY += yNew[i]![j]! * yNew[i]![j]!;
       }
     y = yNew;
     if (Math.sqrt(diffXY / normY) <= tol && Math.sqrt(diffY / normY) <= tol) {
@@ -226,7 +226,8 @@ export function nearestCorrelation(
       matrix[j]![i] = m;
     }
   let dist = 0;
-  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) dist += (matrix[i]![j]! - sym[i]![j]!) ** 2;
+  for (let i = 0; i < n; i++)
+    for (let j = 0; j < n; j++) dist += (matrix[i]![j]! - sym[i]![j]!) * (matrix[i]![j]! - sym[i]![j]!);
   return { matrix, iterations, converged, distance: Math.sqrt(dist) };
 }
 

@@ -11,6 +11,7 @@
  *   x ← x − u / (1 + x·u/2), u = (Φ(x) − p) / φ(x) (Halley's method for Φ(x) = p, using φ'(x) = −x·φ(x)).
  */
 
+import { exp, log } from './detMath.ts';
 const SQRT_2PI_INV = 0.398942280401432677939946059934; // 1/√(2π)
 const SQRT_32 = 5.656854249492380195206754896838;
 const THRESHOLD = 0.66291;
@@ -46,7 +47,7 @@ const Q = [
 function gaussFactor(y: number): number {
   const ys = Math.trunc(y * 16) / 16;
   const del = (y - ys) * (y + ys);
-  return Math.exp(-0.5 * ys * ys) * Math.exp(-0.5 * del);
+  return exp(-0.5 * ys * ys) * exp(-0.5 * del);
 }
 
 /** Cody (1993) first interval: Φ(x) − 1/2 for |x| ≤ 0.66291. */
@@ -154,7 +155,7 @@ export function normInvFast(p: number): number {
     );
   }
   let r = q < 0 ? p : 1 - p;
-  r = Math.sqrt(-Math.log(r));
+  r = Math.sqrt(-log(r));
   let val: number;
   if (r <= 5) {
     r -= 1.6;

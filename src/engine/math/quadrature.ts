@@ -11,6 +11,7 @@
  *   kind of map); whole line by splitting at 0.
  */
 import { EngineError, issue } from '../errors.ts';
+import { cos, pow } from './detMath.ts';
 
 /** Nodes and weights of an n-point Gauss–Legendre rule on [−1, 1], nodes increasing. */
 export interface GaussRule {
@@ -40,7 +41,7 @@ function computeGaussLegendre(n: number): GaussRule {
   const m = Math.floor((n + 1) / 2);
   for (let i = 0; i < m; i++) {
     // Initial guess (A&S 22.16.6 asymptotics): cos(π(i + 3/4)/(n + 1/2)).
-    let x = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
+    let x = cos((Math.PI * (i + 0.75)) / (n + 0.5));
     let dp = 0;
     for (let iter = 0; iter < 100; iter++) {
       const [p1, p0] = legendrePair(n, x);
@@ -162,7 +163,7 @@ function gk15(f: (x: number) => number, a: number, b: number, depth: number): Se
   const resabs = kAbs * ah;
   const resasc = asc * ah;
   let err = Math.abs((k - g) * h);
-  if (resasc !== 0 && err !== 0) err = resasc * Math.min(1, Math.pow((200 * err) / resasc, 1.5));
+  if (resasc !== 0 && err !== 0) err = resasc * Math.min(1, pow((200 * err) / resasc, 1.5));
   if (resabs > UFLOW / (50 * EPMACH)) err = Math.max(50 * EPMACH * resabs, err);
   return { a, b, value: k * h, error: err, roundoff: 50 * EPMACH * resabs, depth };
 }
