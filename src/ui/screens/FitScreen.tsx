@@ -326,8 +326,22 @@ function VariantFit(props: { v: LadderVariant; market: MarketSnapshot | undefine
                             )}
                           </td>
                           <td className="num">{pct(l.marketVol, 2)}</td>
-                          <td className="num">{pct(l.modelVol, 2)}</td>
-                          <td className="num">{num((l.modelVol - l.marketVol) * 1e4, 3)}</td>
+                          {l.parsed.monteCarlo && l.modelVol === l.marketVol ? (
+                            <>
+                              <td className="num hint">as quoted</td>
+                              <td
+                                className="num hint"
+                                title="this variant reproduces the quoted surface by construction; its Monte Carlo reprice is the test"
+                              >
+                                by construction
+                              </td>
+                            </>
+                          ) : (
+                            <>
+                              <td className="num">{pct(l.modelVol, 2)}</td>
+                              <td className="num">{num((l.modelVol - l.marketVol) * 1e4, 3)}</td>
+                            </>
+                          )}
                           <McCell line={l} ccy={ccy} />
                         </tr>
                       ))}
