@@ -14,6 +14,7 @@
 import { EngineError, issue, throwIfErrors, type FieldIssue } from '../errors.ts';
 import type { CurveSpec, DiscountCurve } from './types.ts';
 import { bracketIndex } from '../math/search.ts';
+import { exp, expm1, log } from '../math/detMath.ts';
 
 function num(v: unknown): v is number {
   return typeof v === 'number' && Number.isFinite(v);
@@ -120,7 +121,7 @@ export function makeCurve(spec: CurveSpec, field = 'curve'): DiscountCurve {
   const x = spec.times.slice();
   const y = spec.zeroRates
     ? spec.zeroRates.map((z, i) => z * x[i]!)
-    : spec.discountFactors!.map((p) => -Math.log(p));
+    : spec.discountFactors!.map((p) => -log(p));
   const n = x.length;
   const z1 = y[0]! / x[0]!;
   const m = n >= 2 ? splineSecondDerivatives(x, y, z1) : [0];
@@ -175,7 +176,7 @@ function curveFromLogDiscount(
     currency,
     df(t: number): number {
       checkTime(field, t);
-      return t === 0 ? 1 : Math.exp(-yOf(t));
+      return t === 0 ? 1 : exp(-yOf(t));
     },
     zero(t: number): number {
       checkTime(field, t);
@@ -190,7 +191,7 @@ function curveFromLogDiscount(
       checkTime(field, t2);
       if (t2 === t1) return dyOf(t1);
       // Simply compounded forward: (P(t1)/P(t2) − 1)/(t2 − t1), via expm1 for accuracy on short periods.
-      return Math.expm1(yOf(t2) - yOf(t1)) / (t2 - t1);
+      return expm1(yOf(t2) - yOf(t1)) / (t2 - t1);
     },
   };
 }
@@ -218,7 +219,7 @@ export function shiftedCurve(curve: DiscountCurve, delta: number): DiscountCurve
   return curveFromLogDiscount(
     curve.currency,
     'curve',
-    (t) => (t === 0 ? 0 : -Math.log(curve.df(t)) + delta * t),
+    (t) => (t === 0 ? 0 : -log(curve.df(t)) + delta * t),
     (t) => curve.instFwd(t) + delta,
   );
 }

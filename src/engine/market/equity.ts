@@ -8,6 +8,7 @@
  */
 import { fail, requireFinite, requirePositive } from '../errors.ts';
 import type { DiscountCurve, EquityQuote } from './types.ts';
+import { exp } from '../math/detMath.ts';
 
 /** Present value (at time 0, in the equity's currency) of the cash dividends paid in (0, t]. */
 export function dividendPv(eq: Pick<EquityQuote, 'dividends'>, curve: DiscountCurve, t: number): number {
@@ -37,5 +38,5 @@ export function equityForward(
       eq.spot - net,
       'check the dividend amounts and their currency',
     );
-  return (net * Math.exp(-eq.divYield * t)) / curve.df(t);
+  return (net * exp(-eq.divYield * t)) / curve.df(t);
 }

@@ -21,6 +21,7 @@ import { EngineError, issue, throwIfErrors, type FieldIssue } from '../errors.ts
 import { normCdf } from '../math/normal.ts';
 import { bracketIndex } from '../math/search.ts';
 import type { VolGridSpec } from './types.ts';
+import { log } from '../math/detMath.ts';
 
 /** A queryable implied-vol surface. Times in years, strikes in currency units, vols lognormal decimals. */
 export interface VolSurface {
@@ -209,7 +210,7 @@ export function makeVolSurface(
       throw new EngineError('E_FORWARD', `${field}: forward at T = ${T} must be > 0 (got ${F})`, [
         issue('E_FORWARD', `${field}.expiries[${i}]`, 'must have a positive forward', F),
       ]);
-    const ks = baseStrikes.map((K) => Math.log(K / F));
+    const ks = baseStrikes.map((K) => log(K / F));
     const vols = spec.vols[i]!.slice();
     return { T, ks, vols, interp: monotoneCubic(ks, vols) };
   });
@@ -257,11 +258,11 @@ export function makeVolSurface(
     volsAt: (i) => rows[i]!.vols,
     totalVariance(T, K) {
       checkQuery(T, K);
-      return totalVarianceAtK(T, Math.log(K / forward(T)));
+      return totalVarianceAtK(T, log(K / forward(T)));
     },
     vol(T, K) {
       checkQuery(T, K);
-      return Math.sqrt(totalVarianceAtK(T, Math.log(K / forward(T))) / T);
+      return Math.sqrt(totalVarianceAtK(T, log(K / forward(T))) / T);
     },
   };
   return surface;
@@ -270,7 +271,7 @@ export function makeVolSurface(
 /** Undiscounted Black (1976) call on a forward F with total standard deviation sd = σ√T (common practice). */
 function blackCallUndiscounted(F: number, K: number, sd: number): number {
   if (sd <= 0) return Math.max(F - K, 0);
-  const d1 = Math.log(F / K) / sd + 0.5 * sd;
+  const d1 = log(F / K) / sd + 0.5 * sd;
   return F * normCdf(d1) - K * normCdf(d1 - sd);
 }
 
@@ -302,7 +303,7 @@ export function checkVolArbitrage(surface: VolSurface, options: VolArbitrageOpti
     const F0 = surface.forward(T0);
     const F1 = surface.forward(T1);
     strikes.forEach((K, j) => {
-      const w1 = vols1[j]! ** 2 * T1;
+      const w1 = vols1[j]! * vols1[j]! * T1;
       // Same forward moneyness on the earlier expiry: K' = K·F(T0)/F(T1).
       const w0 = surface.totalVariance(T0, (K * F0) / F1);
       if (w1 < w0 - vTol)
