@@ -10,6 +10,7 @@
 import { fail, requireFinite, requireNonNegative, requirePositive } from '../errors.ts';
 import { normCdf, normPdf } from '../math/normal.ts';
 import type { OptionType } from './blackScholes.ts';
+import { log } from '../math/detMath.ts';
 
 /** Inputs of a Bachelier option. */
 export interface BachelierInput {
@@ -76,11 +77,11 @@ export function bachelierImpliedVol(p: Omit<BachelierInput, 'vol'> & { price: nu
   let lo = 0;
   let hi = Infinity;
   let s = Math.max(v * Math.sqrt(2 * Math.PI), 1e-300);
-  const target = Math.log(v);
+  const target = log(v);
   for (let it = 0; it < 100; it++) {
     const val = otmValue(x, s);
     const vega = normPdf(x / s);
-    const f = Math.log(val) - target;
+    const f = log(val) - target;
     const df = vega / val;
     if (f < 0) lo = Math.max(lo, s);
     else hi = Math.min(hi, s);

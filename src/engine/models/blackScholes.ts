@@ -17,6 +17,7 @@
  */
 import { fail, requireFinite, requireNonNegative, requirePositive } from '../errors.ts';
 import { normCdf, normInv, normPdf } from '../math/normal.ts';
+import { exp, log } from '../math/detMath.ts';
 
 /** Call or put. */
 export type OptionType = 'call' | 'put';
@@ -74,7 +75,7 @@ function validate(where: string, p: BsInput): void {
  */
 export function blackUndiscounted(type: OptionType, F: number, K: number, sd: number): number {
   if (sd <= 0) return type === 'call' ? Math.max(F - K, 0) : Math.max(K - F, 0);
-  const d1 = Math.log(F / K) / sd + 0.5 * sd;
+  const d1 = log(F / K) / sd + 0.5 * sd;
   const d2 = d1 - sd;
   return type === 'call' ? F * normCdf(d1) - K * normCdf(d2) : K * normCdf(-d2) - F * normCdf(-d1);
 }
@@ -82,8 +83,8 @@ export function blackUndiscounted(type: OptionType, F: number, K: number, sd: nu
 /** Black–Scholes–Merton price (currency units), Haug (1998) p. 2 (generalised BSM with b = r − q). */
 export function bsPrice(p: BsInput): number {
   validate('bs', p);
-  const F = p.S * Math.exp((p.r - p.q) * p.T);
-  return Math.exp(-p.r * p.T) * blackUndiscounted(p.type, F, p.K, p.vol * Math.sqrt(p.T));
+  const F = p.S * exp((p.r - p.q) * p.T);
+  return exp(-p.r * p.T) * blackUndiscounted(p.type, F, p.K, p.vol * Math.sqrt(p.T));
 }
 
 /** Black–Scholes–Merton price and Greeks in closed form, Haug (1998) Sec. 1.3 pp. 11–16. Requires vol > 0. */
@@ -93,9 +94,9 @@ export function bsGreeks(p: BsInput): BsGreeks {
   const { S, K, T, r, q, vol } = p;
   const sqT = Math.sqrt(T);
   const sd = vol * sqT;
-  const dq = Math.exp(-q * T);
-  const dr = Math.exp(-r * T);
-  const d1 = (Math.log(S / K) + (r - q + 0.5 * vol * vol) * T) / sd;
+  const dq = exp(-q * T);
+  const dr = exp(-r * T);
+  const d1 = (log(S / K) + (r - q + 0.5 * vol * vol) * T) / sd;
   const d2 = d1 - sd;
   const nd1 = normPdf(d1);
   const gamma = (dq * nd1) / (S * sd);
@@ -188,7 +189,7 @@ export function bsPriceCashDividends(p: BsInput & { dividends: CashDividend[] })
   p.dividends.forEach((d, i) => {
     requireFinite(`bs.dividends[${i}].t`, d.t);
     requireNonNegative(`bs.dividends[${i}].amount`, d.amount);
-    if (d.t > 0 && d.t <= p.T) pv += d.amount * Math.exp(-p.r * d.t);
+    if (d.t > 0 && d.t <= p.T) pv += d.amount * exp(-p.r * d.t);
   });
   const S = p.S - pv;
   if (!(S > 0))
@@ -224,23 +225,23 @@ function normalisedOtm(x: number, s: number): number {
   const h = x / s;
   const t = 0.5 * s;
   // φ(h+t) e^{x/2} = φ(h−t) e^{−x/2} = exp(−(h² + t²)/2)/√(2π) since h·t = x/2 (Jäckel 2015, Sec. 2).
-  const g = SQRT_2PI_INV * Math.exp(-0.5 * (h * h + t * t));
+  const g = SQRT_2PI_INV * exp(-0.5 * (h * h + t * t));
   if (h + t < -1) return g * (millsRatio(h + t) - millsRatio(h - t));
-  return Math.exp(0.5 * x) * normCdf(h + t) - Math.exp(-0.5 * x) * normCdf(h - t);
+  return exp(0.5 * x) * normCdf(h + t) - exp(-0.5 * x) * normCdf(h - t);
 }
 
 /** ∂b/∂s = exp(−(h² + t²)/2)/√(2π) (normalised vega). */
 function normalisedVega(x: number, s: number): number {
   const h = x / s;
   const t = 0.5 * s;
-  return SQRT_2PI_INV * Math.exp(-0.5 * (h * h + t * t));
+  return SQRT_2PI_INV * exp(-0.5 * (h * h + t * t));
 }
 
 /** max(b) − b(x, s) = e^{x/2} Φ(−h−t) + e^{−x/2} Φ(h−t) for x ≤ 0: both terms positive, no cancellation. */
 function normalisedGap(x: number, s: number): number {
   const h = x / s;
   const t = 0.5 * s;
-  return Math.exp(0.5 * x) * normCdf(-h - t) + Math.exp(-0.5 * x) * normCdf(h - t);
+  return exp(0.5 * x) * normCdf(-h - t) + exp(-0.5 * x) * normCdf(h - t);
 }
 
 /** Inputs of an implied-vol inversion: as {@link BsInput} with the price in place of the vol. */
@@ -262,7 +263,7 @@ export interface BsImpliedVolInput {
  * a bracket that shrinks every iteration; a step leaving it becomes a bisection.
  */
 function solveNormalised(x: number, beta: number): number {
-  const bMax = Math.exp(0.5 * x);
+  const bMax = exp(0.5 * x);
   const gapTarget = bMax - beta;
   let lo = 0;
   let hi = Infinity;
@@ -276,26 +277,26 @@ function solveNormalised(x: number, beta: number): number {
   }
   if (!upper) {
     // Asymptotic start from ln b ≈ −x²/(2 s²) (lower region).
-    s = Math.min(sc, -x / Math.sqrt(-2 * Math.log(beta)));
+    s = Math.min(sc, -x / Math.sqrt(-2 * log(beta)));
     hi = sc;
   } else {
     lo = sc;
     // Start from the at-the-money relation applied to the gap, kept above s_c.
     s = Math.max(sc * 1.0001, 2 * normInv(Math.min(0.5 * (1 + beta / bMax), 1 - 1e-16)) + sc * 0.5);
   }
-  const lnT = upper ? Math.log(gapTarget) : 1 / Math.sqrt(-Math.log(beta));
+  const lnT = upper ? log(gapTarget) : 1 / Math.sqrt(-log(beta));
   for (let it = 0; it < 60; it++) {
     let f: number;
     let df: number;
     if (upper) {
       const gap = normalisedGap(x, s);
-      f = Math.log(gap) - lnT;
+      f = log(gap) - lnT;
       df = -normalisedVega(x, s) / gap;
       if (f > 0) lo = Math.max(lo, s);
       else hi = Math.min(hi, s);
     } else {
       const b = normalisedOtm(x, s);
-      const lb = -Math.log(b);
+      const lb = -log(b);
       const w = 1 / Math.sqrt(lb);
       f = w - lnT;
       df = 0.5 * w * w * w * (normalisedVega(x, s) / b);
@@ -326,8 +327,8 @@ export function bsImpliedVol(p: BsImpliedVolInput): number {
   requirePositive('iv.T', p.T, 'the option must expire after the valuation date');
   requireFinite('iv.r', p.r);
   requireFinite('iv.q', p.q);
-  const F = p.S * Math.exp((p.r - p.q) * p.T);
-  const dfr = Math.exp(-p.r * p.T);
+  const F = p.S * exp((p.r - p.q) * p.T);
+  const dfr = exp(-p.r * p.T);
   const undiscounted = p.price / dfr;
   const s = impliedSdFromUndiscounted(p.type, undiscounted, F, p.K, 'iv.price');
   return s / Math.sqrt(p.T);
@@ -363,7 +364,7 @@ export function impliedSdFromUndiscounted(
       'a price at or above this bound admits arbitrage',
     );
   // Out-of-the-money time value: call with x = ln(F/K) ≤ 0 by put–call parity C − P = F − K.
-  const x = -Math.abs(Math.log(F / K));
+  const x = -Math.abs(log(F / K));
   const otmIsCall = F <= K;
   const timeValue =
     type === 'call' ? (otmIsCall ? price : price - (F - K)) : otmIsCall ? price - (K - F) : price;

@@ -13,6 +13,7 @@ import { fail, requireCorrelation, requireFinite, requireNonNegative, requirePos
 import type { DiscountCurve } from '../market/types.ts';
 import type { HullWhiteParams } from '../simulation/types.ts';
 import { blackUndiscounted, type OptionType } from './blackScholes.ts';
+import { exp } from '../math/detMath.ts';
 
 /** Inputs of a Black–Scholes–Hull–White European option. */
 export interface BsHullWhiteInput {
@@ -104,15 +105,15 @@ export function bsHullWhite(p: BsHullWhiteInput): BsHullWhiteResult {
     const mid = 0.5 * (lo + hi);
     const sS = valueAt(eq, mid);
     const sR = valueAt(hw, mid);
-    const e1 = Math.exp(-a * (T - hi)) - Math.exp(-a * (T - lo));
-    const e2 = Math.exp(-2 * a * (T - hi)) - Math.exp(-2 * a * (T - lo));
+    const e1 = exp(-a * (T - hi)) - exp(-a * (T - lo));
+    const e2 = exp(-2 * a * (T - hi)) - exp(-2 * a * (T - lo));
     const intB = (hi - lo - e1 / a) / a;
     const intB2 = (hi - lo - (2 * e1) / a + e2 / (2 * a)) / (a * a);
     variance += sS * sS * (hi - lo) + 2 * rho * sS * sR * intB + sR * sR * intB2;
   }
   variance = Math.max(variance, 0);
   const P = p.curve.df(T);
-  const forward = (p.S * Math.exp(-p.q * T)) / P;
+  const forward = (p.S * exp(-p.q * T)) / P;
   const price = P * blackUndiscounted(p.type, forward, p.K, Math.sqrt(variance));
   return { price, variance, effectiveVol: Math.sqrt(variance / T), forward };
 }

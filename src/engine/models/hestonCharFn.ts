@@ -23,6 +23,7 @@
  */
 import { Complex } from '../math/complex.ts';
 import type { HestonParams } from '../simulation/types.ts';
+import { atan2, cos, exp, log, sin } from '../math/detMath.ts';
 
 /** C and D of the exponent, φ(u) = exp(C + D v₀). */
 export interface HestonExponent {
@@ -125,9 +126,9 @@ export function hestonExponentGrid(
     const gr = (gnr * pr + gni * pi) * ipden;
     const gi = (gni * pr - gnr * pi) * ipden;
     // e = exp(−dT)
-    const ex = Math.exp(-dr * T);
-    const er = ex * Math.cos(di * T);
-    const ei = -ex * Math.sin(di * T);
+    const ex = exp(-dr * T);
+    const er = ex * cos(di * T);
+    const ei = -ex * sin(di * T);
     // 1 − e, 1 − g e
     const ome_r = 1 - er;
     const ome_i = -ei;
@@ -157,8 +158,8 @@ export function hestonExponentGrid(
       Lr = wr - 0.5 * w2r + w3r / 3;
       Li = wi - 0.5 * w2i + w3i / 3;
     } else {
-      Lr = 0.5 * Math.log((1 + wr) * (1 + wr) + wi * wi);
-      Li = Math.atan2(wi, 1 + wr);
+      Lr = 0.5 * log((1 + wr) * (1 + wr) + wi * wi);
+      Li = atan2(wi, 1 + wr);
     }
     const Cr = kt * T * mr - twoKtOverS2 * Lr;
     const Ci = kt * T * mi - twoKtOverS2 * Li;
@@ -199,10 +200,10 @@ export function hestonCharFnGrid(
 ): void {
   hestonExponentGrid(params, T, u, re, im);
   for (let j = 0; j < u.length; j++) {
-    const m = Math.exp(re[j]!);
+    const m = exp(re[j]!);
     const a = im[j]!;
-    re[j] = m * Math.cos(a);
-    im[j] = m * Math.sin(a);
+    re[j] = m * cos(a);
+    im[j] = m * sin(a);
   }
 }
 
@@ -326,9 +327,9 @@ export function hestonExponentGradientGrid(
     const gr = s2 * (mr * ipr - mi * ipi);
     const gi = s2 * (mr * ipi + mi * ipr);
     // e = exp(−dT)
-    const ex = Math.exp(-dr * T);
-    const er = ex * Math.cos(di * T);
-    const ei = -ex * Math.sin(di * T);
+    const ex = exp(-dr * T);
+    const er = ex * cos(di * T);
+    const ei = -ex * sin(di * T);
     const omeR = 1 - er;
     const omeI = -ei;
     const geR = gr * er - gi * ei;
@@ -361,8 +362,8 @@ export function hestonExponentGradientGrid(
       Lr = wr - 0.5 * w2r + (w2r * wr - w2i * wi) / 3;
       Li = wi - 0.5 * w2i + (w2r * wi + w2i * wr) / 3;
     } else {
-      Lr = 0.5 * Math.log((1 + wr) * (1 + wr) + wi * wi);
-      Li = Math.atan2(wi, 1 + wr);
+      Lr = 0.5 * log((1 + wr) * (1 + wr) + wi * wi);
+      Li = atan2(wi, 1 + wr);
     }
     const i1wN = 1 / ((1 + wr) * (1 + wr) + wi * wi);
     const i1wR = (1 + wr) * i1wN;

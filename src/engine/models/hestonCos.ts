@@ -22,6 +22,7 @@ import type { HestonParams } from '../simulation/types.ts';
 import type { OptionType } from './blackScholes.ts';
 import { type HestonMarket, validateHeston } from './heston.ts';
 import { hestonExponentGradientGrid, hestonExponentGrid } from './hestonCharFn.ts';
+import { cos, exp, expm1, log, sin } from '../math/detMath.ts';
 
 /** Options of the COS pricer. */
 export interface CosOptions {
@@ -57,7 +58,7 @@ export interface HestonSliceResult {
 /** Cumulants c₁, c₂, c₄ of X = ln(S_T/F_T) under Heston. */
 export function hestonCumulants(params: HestonParams, T: number): { c1: number; c2: number; c4: number } {
   const { v0, kappa, theta } = params;
-  const meanIntVar = theta * T + ((v0 - theta) * -Math.expm1(-kappa * T)) / kappa;
+  const meanIntVar = theta * T + ((v0 - theta) * -expm1(-kappa * T)) / kappa;
   const c1 = -0.5 * meanIntVar;
   // Re ln φ(u) = −c₂u²/2 + c₄u⁴/24 + O(u⁶): w(u) = −2 Re ln φ(u)/u² = c₂ − c₄u²/12 + O(u⁴).
   const scale = Math.sqrt(Math.max(meanIntVar, 1e-12));
@@ -85,7 +86,7 @@ export function defaultTruncationL(c2: number, c4: number, relTol = 1e-10): numb
   const kurt = Math.abs(c4) / (c2 * c2);
   const base = Math.min(48, Math.max(12, 4 + 1.2 * kurt));
   // Tails are roughly exponential, so the truncated mass falls like e^{−cL}: scale L with ln(1/tol) (1 at 1e-10).
-  const scale = Math.min(1.5, Math.max(0.5, Math.log(1 / relTol) / Math.log(1e10)));
+  const scale = Math.min(1.5, Math.max(0.5, log(1 / relTol) / log(1e10)));
   return base * scale;
 }
 
@@ -157,8 +158,8 @@ function expand(
     }
     let cut = -1;
     for (let j = 0; j < len; j++) {
-      const mag = Math.exp(eRe[j]!);
-      A[m0 + j] = scale * mag * Math.cos(eIm[j]! - uc[j]! * a);
+      const mag = exp(eRe[j]!);
+      A[m0 + j] = scale * mag * cos(eIm[j]! - uc[j]! * a);
       if (fixedN === undefined && cut < 0 && m0 + j > 0) {
         quiet = (bound * mag) / (m0 + j) < stop ? quiet + 1 : 0;
         if (quiet >= 4) cut = m0 + j + 1;
@@ -216,11 +217,11 @@ function gradientCoefficients(
   if (onlyV0) hestonExponentGrid(p, m.T, u, eRe, eIm, dRe, dIm);
   else hestonExponentGradientGrid(p, m.T, u, eRe, eIm, gRe, gIm);
   for (let j = 0; j < len; j++) {
-    const mag = Math.exp(eRe[j]!);
+    const mag = exp(eRe[j]!);
     const ph = eIm[j]! - u[j]! * a;
     // φ e^{−iua}
-    const cr = mag * Math.cos(ph);
-    const ci = mag * Math.sin(ph);
+    const cr = mag * cos(ph);
+    const ci = mag * sin(ph);
     if (onlyV0) {
       outs[0]![j] = (2 / width) * (dRe[j]! * cr - dIm[j]! * ci);
       continue;
@@ -274,8 +275,8 @@ function putSums(
   const { coef, P, B, W } = series;
   const N = coef.length;
   const theta = (Math.PI * (c - a)) / width;
-  const ct = Math.cos(theta);
-  const st = Math.sin(theta);
+  const ct = cos(theta);
+  const st = sin(theta);
   // k = 0: ψ₀ = c − a, χ₀ = e^c − e^a
   let psi = coef[0]! * (c - a);
   let chiC = B[0]!;
@@ -291,7 +292,7 @@ function putSums(
     chiC += B[k]! * ck + W[k]! * sk;
     cosSum += coef[k]! * ck;
   }
-  const chi = Math.exp(c) * chiC - Math.exp(a) * series.sumB;
+  const chi = exp(c) * chiC - exp(a) * series.sumB;
   return { psi, chi, cosSum };
 }
 
@@ -310,8 +311,8 @@ function typeAt(types: OptionType | OptionType[] | undefined, i: number, where: 
 function sliceSetup(input: HestonSliceInput, withGradient: boolean) {
   validateHeston('heston', input);
   const kMax = checkStrikes('heston', input.strikes);
-  const F = input.S * Math.exp((input.r - input.q) * input.T);
-  const df = Math.exp(-input.r * input.T);
+  const F = input.S * exp((input.r - input.q) * input.T);
+  const df = exp(-input.r * input.T);
   const ex = expand(input, F, kMax, input.options ?? {}, withGradient);
   const width = ex.b - ex.a;
   return { F, df, ex, width, series: prepare(ex.A, width) };
@@ -326,7 +327,7 @@ export function hestonCosSlice(input: HestonSliceInput): HestonSliceResult {
   const prices: number[] = [];
   for (let i = 0; i < input.strikes.length; i++) {
     const K = input.strikes[i]!;
-    const c = Math.min(Math.max(Math.log(K / F), ex.a), ex.b);
+    const c = Math.min(Math.max(log(K / F), ex.a), ex.b);
     const s = putSums(series, ex.a, width, c);
     const put = Math.max(0, df * (K * s.psi - F * s.chi));
     const type = typeAt(input.types, i, 'heston');
@@ -359,9 +360,9 @@ export interface HestonGreeks {
  */
 export function hestonCosGreeks(input: HestonSliceInput): HestonGreeks[] {
   validateHeston('heston', input);
-  const F = input.S * Math.exp((input.r - input.q) * input.T);
-  const df = Math.exp(-input.r * input.T);
-  const growth = Math.exp((input.r - input.q) * input.T);
+  const F = input.S * exp((input.r - input.q) * input.T);
+  const df = exp(-input.r * input.T);
+  const growth = exp((input.r - input.q) * input.T);
   const kMax = checkStrikes('heston', input.strikes);
   const ex = expand(input, F, kMax, input.options ?? {}, true, true);
   const width = ex.b - ex.a;
@@ -370,14 +371,14 @@ export function hestonCosGreeks(input: HestonSliceInput): HestonGreeks[] {
   const out: HestonGreeks[] = [];
   for (let i = 0; i < input.strikes.length; i++) {
     const K = input.strikes[i]!;
-    const c = Math.min(Math.max(Math.log(K / F), ex.a), ex.b);
+    const c = Math.min(Math.max(log(K / F), ex.a), ex.b);
     const s = putSums(series, ex.a, width, c);
     const type = typeAt(input.types, i, 'heston');
     const putDeltaF = -df * s.chi;
     const deltaPut = putDeltaF * growth;
     const inside = c > ex.a && c < ex.b;
     const gamma = inside ? df * (K / (F * F)) * s.cosSum * growth * growth : 0;
-    const delta = type === 'put' ? deltaPut : deltaPut + Math.exp(-input.q * input.T);
+    const delta = type === 'put' ? deltaPut : deltaPut + exp(-input.q * input.T);
     const put = df * (K * s.psi - F * s.chi);
     const price = type === 'put' ? put : put + df * (F - K);
     const v = putSums(gradSeries[0]!, ex.a, width, c);
@@ -402,7 +403,7 @@ export function hestonCosSliceWithGradient(input: HestonSliceInput): HestonSlice
   const gradient: HestonSliceGradient['gradient'] = [];
   for (let i = 0; i < input.strikes.length; i++) {
     const K = input.strikes[i]!;
-    const c = Math.min(Math.max(Math.log(K / F), ex.a), ex.b);
+    const c = Math.min(Math.max(log(K / F), ex.a), ex.b);
     const s = putSums(series, ex.a, width, c);
     const put = df * (K * s.psi - F * s.chi);
     const type = typeAt(input.types, i, 'heston');

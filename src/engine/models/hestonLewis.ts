@@ -15,6 +15,7 @@ import { fail, requirePositive } from '../errors.ts';
 import type { OptionType } from './blackScholes.ts';
 import { type HestonMarket, validateHeston } from './heston.ts';
 import { hestonCharFn } from './hestonCharFn.ts';
+import { exp, log } from '../math/detMath.ts';
 
 /** Heston European price (currency units) by the Lewis integral; `absTol` on the integral (default 1e-13). */
 export function hestonLewis(input: HestonMarket & { type: OptionType; K: number; absTol?: number }): number {
@@ -23,9 +24,9 @@ export function hestonLewis(input: HestonMarket & { type: OptionType; K: number;
   if (input.type !== 'call' && input.type !== 'put')
     fail('E_OPTION_TYPE', 'heston.type', "must be 'call' or 'put'", input.type);
   const { S, T, r, q, K, params } = input;
-  const F = S * Math.exp((r - q) * T);
-  const df = Math.exp(-r * T);
-  const k = Math.log(F / K);
+  const F = S * exp((r - q) * T);
+  const df = exp(-r * T);
+  const k = log(F / K);
   const shift = Complex.of(0, -0.5);
   const integrand = (u: number): number => {
     const phi = hestonCharFn(params, T, Complex.of(u).add(shift));

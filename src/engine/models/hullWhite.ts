@@ -20,6 +20,7 @@ import { fail, requireFinite, requireNonNegative, requirePositive } from '../err
 import type { DiscountCurve } from '../market/types.ts';
 import { normCdf } from '../math/normal.ts';
 import type { HullWhiteParams } from '../simulation/types.ts';
+import { exp, expm1, log } from '../math/detMath.ts';
 
 export type { HullWhiteParams } from '../simulation/types.ts';
 
@@ -126,15 +127,15 @@ export function makeHullWhite(curve: DiscountCurve, params: HullWhiteParams): Hu
   }
   // B(t,T) = (1 − e^{−a(T−t)})/a, BM eq. (3.39): the simulation layer's hwB, inlined here because every bond, caplet
   // and swaption price calls it several times inside the calibration's residual loop (a > 0 is checked above).
-  const B = (t: number, T: number): number => -Math.expm1(-a * (T - t)) / a;
+  const B = (t: number, T: number): number => -expm1(-a * (T - t)) / a;
   // ∫_lo^hi e^{−2a(t−u)} du = (e^{−2a(t−hi)} − e^{−2a(t−lo)})/(2a)
   const varX = (t: number): number =>
-    pieces(t, (s2, lo, hi) => (s2 * (Math.exp(-2 * a * (t - hi)) - Math.exp(-2 * a * (t - lo)))) / (2 * a));
+    pieces(t, (s2, lo, hi) => (s2 * (exp(-2 * a * (t - hi)) - exp(-2 * a * (t - lo)))) / (2 * a));
   // ψ(t) = ∫ σ² e^{−a(t−u)}(1 − e^{−a(t−u)})/a du
   const psi = (t: number): number =>
     pieces(t, (s2, lo, hi) => {
-      const e1 = (Math.exp(-a * (t - hi)) - Math.exp(-a * (t - lo))) / a;
-      const e2 = (Math.exp(-2 * a * (t - hi)) - Math.exp(-2 * a * (t - lo))) / (2 * a);
+      const e1 = (exp(-a * (t - hi)) - exp(-a * (t - lo))) / a;
+      const e2 = (exp(-2 * a * (t - hi)) - exp(-2 * a * (t - lo))) / (2 * a);
       return (s2 * (e1 - e2)) / a;
     });
   const checkT = (field: string, t: number): void => {
@@ -146,7 +147,7 @@ export function makeHullWhite(curve: DiscountCurve, params: HullWhiteParams): Hu
     checkT('bond.T', T);
     if (T < t) fail('E_TIME_ORDER', 'bond.T', `must be >= t (${t})`, T);
     const b = B(t, T);
-    return (curve.df(T) / curve.df(t)) * Math.exp(-b * (x + psi(t)) - 0.5 * b * b * varX(t));
+    return (curve.df(T) / curve.df(t)) * exp(-b * (x + psi(t)) - 0.5 * b * b * varX(t));
   };
   const bondOptionVol = (T: number, S: number): number => B(T, S) * Math.sqrt(varX(T));
 
@@ -156,7 +157,7 @@ export function makeHullWhite(curve: DiscountCurve, params: HullWhiteParams): Hu
     const PS = curve.df(S);
     const sp = bondOptionVol(T, S);
     if (sp === 0) return type === 'call' ? Math.max(PS - X * PT, 0) : Math.max(X * PT - PS, 0);
-    const h = Math.log(PS / (PT * X)) / sp + 0.5 * sp;
+    const h = log(PS / (PT * X)) / sp + 0.5 * sp;
     return type === 'call'
       ? PS * normCdf(h) - X * PT * normCdf(h - sp)
       : X * PT * normCdf(-h + sp) - PS * normCdf(-h);

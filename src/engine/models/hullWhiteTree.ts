@@ -24,6 +24,7 @@
  */
 import { fail, requirePositive } from '../errors.ts';
 import type { DiscountCurve } from '../market/types.ts';
+import { exp, expm1, log } from '../math/detMath.ts';
 
 /** The fitted tree as plain data (structured-cloneable). Level i has nodes j = −width[i] … width[i]. */
 export interface HullWhiteTree {
@@ -105,8 +106,8 @@ export function buildHullWhiteTree(
   dx[0] = 0;
   for (let i = 0; i < N; i++) {
     const h = times[i + 1]! - times[i]!;
-    const decay = Math.exp(-a * h);
-    const v = (sigma * sigma * -Math.expm1(-2 * a * h)) / (2 * a);
+    const decay = exp(-a * h);
+    const v = (sigma * sigma * -expm1(-2 * a * h)) / (2 * a);
     const dxn = Math.sqrt(3 * v);
     dx[i + 1] = dxn;
     nodeOffset[i] = centreL.length;
@@ -131,16 +132,16 @@ export function buildHullWhiteTree(
     const h = times[i + 1]! - times[i]!;
     const wi = width[i]!;
     let s = 0;
-    for (let j = -wi; j <= wi; j++) s += q[j + wi]! * Math.exp(-j * dx[i]! * h);
+    for (let j = -wi; j <= wi; j++) s += q[j + wi]! * exp(-j * dx[i]! * h);
     const target = curve.df(times[i + 1]!);
     if (!(target > 0))
       fail('E_TREE_CURVE', 'hullWhiteTree.curve', 'must give positive discount factors', target);
-    alpha[i] = Math.log(s / target) / h;
+    alpha[i] = log(s / target) / h;
     const wn = width[i + 1]!;
     const qn = new Float64Array(2 * wn + 1);
     for (let j = -wi; j <= wi; j++) {
       const n = nodeOffset[i]! + j + wi;
-      const d = q[j + wi]! * Math.exp(-(alpha[i]! + j * dx[i]!) * h);
+      const d = q[j + wi]! * exp(-(alpha[i]! + j * dx[i]!) * h);
       const k = centreL[n]! + wn;
       qn[k + 1] = qn[k + 1]! + d * puL[n]!;
       qn[k] = qn[k]! + d * pmL[n]!;
@@ -189,7 +190,7 @@ export function rollBack(tree: HullWhiteTree, i: number, next: Float64Array): Fl
     const n = tree.nodeOffset[i]! + j + wi;
     const k = tree.centre[n]! + wn;
     const ev = tree.pu[n]! * next[k + 1]! + tree.pm[n]! * next[k]! + tree.pd[n]! * next[k - 1]!;
-    out[j + wi] = Math.exp(-(tree.alpha[i]! + j * tree.dx[i]!) * h) * ev;
+    out[j + wi] = exp(-(tree.alpha[i]! + j * tree.dx[i]!) * h) * ev;
   }
   return out;
 }

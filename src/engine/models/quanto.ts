@@ -9,6 +9,7 @@
  */
 import { fail, requireCorrelation, requireFinite, requireNonNegative, requirePositive } from '../errors.ts';
 import { blackUndiscounted, type OptionType } from './blackScholes.ts';
+import { exp } from '../math/detMath.ts';
 
 /** Inputs of a quanto option or forward. */
 export interface QuantoInput {
@@ -44,7 +45,7 @@ function check(p: QuantoInput): void {
 /** Quanto-adjusted forward of the equity (foreign currency units): S₀ e^{(r_f − q − ρσ_Sσ_X)T}, Haug (1998) pp. 105–106. */
 export function quantoForward(p: QuantoInput): number {
   check(p);
-  return p.S * Math.exp((p.rForeign - p.q - p.rho * p.volS * p.volFx) * p.T);
+  return p.S * exp((p.rForeign - p.q - p.rho * p.volS * p.volFx) * p.T);
 }
 
 /** Quanto European price in domestic currency: Ē e^{−r_d T} Black(F_Q, K, σ_S√T), Haug (1998) pp. 105–106. */
@@ -54,7 +55,5 @@ export function quantoEuropean(p: QuantoInput & { type: OptionType; K: number; f
   requirePositive('quanto.K', p.K);
   requirePositive('quanto.fixedFx', p.fixedFx, 'fixed exchange rate, domestic per foreign unit');
   const F = quantoForward(p);
-  return (
-    p.fixedFx * Math.exp(-p.rDomestic * p.T) * blackUndiscounted(p.type, F, p.K, p.volS * Math.sqrt(p.T))
-  );
+  return p.fixedFx * exp(-p.rDomestic * p.T) * blackUndiscounted(p.type, F, p.K, p.volS * Math.sqrt(p.T));
 }
