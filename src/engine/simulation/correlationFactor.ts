@@ -75,7 +75,7 @@ export function variantCorrelation(v: VariantSpec, drivers: readonly string[]): 
           ),
         );
       const csr = m[i]![k]!;
-      if (e.dynamics.rho ** 2 + csr ** 2 > 1 + 1e-12)
+      if (e.dynamics.rho * e.dynamics.rho + csr * csr > 1 + 1e-12)
         issues.push(
           issue(
             'E_HYBRID_CORRELATION',

@@ -11,6 +11,7 @@
  */
 import type { HullWhiteParams } from './types.ts';
 import { fail, requireNonNegative, requirePositive } from '../errors.ts';
+import { expm1, pow } from '../math/detMath.ts';
 
 // 8-point Gauss–Legendre nodes and weights on [−1, 1] (Abramowitz & Stegun 1964, Table 25.4). Kept as tabulated
 // rather than math/quadrature's gaussLegendre(8): the computed rule differs in the last bit of some entries, and the
@@ -26,7 +27,7 @@ const GL_W = [
 
 /** B(τ) = (1 − e^{−aτ})/a, τ in years (limit τ as a → 0). */
 export function hwB(a: number, tau: number): number {
-  return a * tau === 0 ? tau : -Math.expm1(-a * tau) / a;
+  return a * tau === 0 ? tau : -expm1(-a * tau) / a;
 }
 
 function gauss(f: (s: number) => number, tau: number): number {
@@ -41,7 +42,7 @@ function gauss(f: (s: number) => number, tau: number): number {
  */
 export function hwIntegrals(a: number, tau: number): { intB: number; intB2: number } {
   if (Math.abs(a * tau) < 0.1) {
-    return { intB: gauss((s) => hwB(a, s), tau), intB2: gauss((s) => hwB(a, s) ** 2, tau) };
+    return { intB: gauss((s) => hwB(a, s), tau), intB2: gauss((s) => pow(hwB(a, s), 2), tau) };
   }
   const b = hwB(a, tau);
   const b2 = hwB(2 * a, tau);
@@ -107,7 +108,7 @@ export function makeHullWhiteTerms(params: HullWhiteParams, field = 'hw'): HullW
       const u1 = Math.min(T, end(i));
       if (u1 <= u0) continue;
       // ∫_{u0}^{u1} B(T − u)² du = G(T − u0) − G(T − u1).
-      s += pieces.values[i]! ** 2 * (G(T - u0) - G(T - u1));
+      s += pieces.values[i]! * pieces.values[i]! * (G(T - u0) - G(T - u1));
     }
     return s;
   };
@@ -118,7 +119,7 @@ export function makeHullWhiteTerms(params: HullWhiteParams, field = 'hw'): HullW
       const u1 = Math.min(t, end(i));
       if (u1 <= u0) continue;
       // ∫_{u0}^{u1} 2 B(t − u) e^{−a(t − u)} du = B(t − u0)² − B(t − u1)², since d/dτ B² = 2 B e^{−aτ}.
-      s += pieces.values[i]! ** 2 * (hwB(a, t - u0) ** 2 - hwB(a, t - u1) ** 2);
+      s += pieces.values[i]! * pieces.values[i]! * (pow(hwB(a, t - u0), 2) - pow(hwB(a, t - u1), 2));
     }
     return s;
   };

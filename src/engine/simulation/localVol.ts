@@ -4,6 +4,7 @@
  */
 import { fail } from '../errors.ts';
 import { bracketIndex } from '../math/search.ts';
+import { log } from '../math/detMath.ts';
 
 /** Fills `out[p]` with the local vol (per √year) at time `t` (years) and level `spot[p]`, for p < spot.length. */
 export type LocalVolFunction = (t: number, spot: Float64Array, out: Float64Array) => void;
@@ -63,11 +64,11 @@ export function makeGridLocalVol(
   return (t, spot, out) => {
     const { i, w } = bracket(times, t);
     const i1 = Math.min(i + 1, times.length - 1);
-    const lnF = Math.log(forward(t));
+    const lnF = log(forward(t));
     const r0 = i * nK;
     const r1 = i1 * nK;
     for (let p = 0; p < spot.length; p++) {
-      const x = Math.log(spot[p]!) - lnF;
+      const x = log(spot[p]!) - lnF;
       let j: number;
       let u: number;
       if (nK === 1 || x <= k0) {

@@ -42,6 +42,7 @@ import { choleskyLower, variantCorrelation } from './correlationFactor.ts';
 import { makeCurve as marketCurve } from '../market/curve.ts';
 import { hwB, hwIntegrals, hwStepFactor, makeHullWhiteTerms, type HullWhiteTerms } from './hullWhiteTerms.ts';
 import { makeGridLocalVol, type LocalVolFunction } from './localVol.ts';
+import { exp, log } from '../math/detMath.ts';
 
 /** Andersen's (2008) switching level ψc between the quadratic and exponential branches. */
 const QE_PSI_C = 1.5;
@@ -109,7 +110,7 @@ function bsIntegral(volTimes: number[], vols: number[], t0: number, t1: number, 
     const end = i === vols.length - 1 ? Infinity : volTimes[i]!;
     if (end <= lo) continue;
     const hi = Math.min(end, t1);
-    s += (power === 2 ? vols[i]! ** 2 : vols[i]!) * (hi - lo);
+    s += (power === 2 ? vols[i]! * vols[i]! : vols[i]!) * (hi - lo);
     lo = hi;
   }
   return s;
@@ -234,7 +235,7 @@ export function prepareVariant(
     const spec = v.rates[ccy]!;
     const f = `variants[${v.id}].rates.${ccy}`;
     const curve = makeCurve(spec.curve, `${f}.curve`);
-    const lnP = Float64Array.from(times, (t) => Math.log(curve.df(t)));
+    const lnP = Float64Array.from(times, (t) => log(curve.df(t)));
     const intPhi = new Float64Array(nSteps);
     const phi = new Float64Array(nSteps + 1);
     const rs: RateState = { ccy, curve, intPhi, phi, slot: -1, wIndex: -1 };
@@ -260,7 +261,7 @@ export function prepareVariant(
         const sig = hw.sigmaAt(0.5 * (times[k]! + times[k + 1]!));
         // ∫_{t_k}^{t_{k+1}} φ = −ln(P(0,t_{k+1})/P(0,t_k)) + ½ (V(0,t_{k+1}) − V(0,t_k)) (Brigo & Mercurio, Sec. 3.3).
         intPhi[k] = lnP[k]! - lnP[k + 1]! + 0.5 * (V0[k + 1]! - V0[k]!);
-        rs.decay[k] = Math.exp(-hw.a * h);
+        rs.decay[k] = exp(-hw.a * h);
         rs.bStep[k] = hwB(hw.a, h);
         rs.factor.push(hwStepFactor(hw.a, sig, h));
         const c = qc * sig;
@@ -334,11 +335,10 @@ export function prepareVariant(
       }
     } else if (d.kind === 'localvol') {
       const given = options.localVol?.[e.name];
-      const lnS0 = Math.log(e.spot);
+      const lnS0 = log(e.spot);
       // Deterministic forward for the moneyness coordinate: F(t) = S0 P_q(t) / P(0,t) with the currency's curve.
       st.lv =
-        given ??
-        makeGridLocalVol(d, (t) => Math.exp(lnS0 - e.divYield * t) / rate.curve.df(t), `${f}.dynamics`);
+        given ?? makeGridLocalVol(d, (t) => exp(lnS0 - e.divYield * t) / rate.curve.df(t), `${f}.dynamics`);
     }
     return st;
   });
@@ -374,7 +374,7 @@ export function prepareVariant(
       stepR.set(ccy, new Float64Array(n));
       if (rs.hw) xNow.set(ccy, new Float64Array(n));
     }
-    const lnS = eqs.map((s) => new Float64Array(n).fill(Math.log(s.e.spot)));
+    const lnS = eqs.map((s) => new Float64Array(n).fill(log(s.e.spot)));
     const vNow = eqs.map((s) =>
       s.e.dynamics.kind === 'heston' ? new Float64Array(n).fill(s.e.dynamics.v0) : null,
     );
@@ -390,7 +390,7 @@ export function prepareVariant(
         variance[s.e.name] = va;
       }
     });
-    const lnX = fxStates.map((f) => new Float64Array(n).fill(Math.log(f.x.spot)));
+    const lnX = fxStates.map((f) => new Float64Array(n).fill(log(f.x.spot)));
     fxStates.forEach((f) => {
       const a = new Float64Array(size);
       a.fill(f.x.spot, 0, n);
@@ -470,7 +470,7 @@ export function prepareVariant(
           for (let p = 0; p < n; p++) {
             const y = ls[p]! + sr[p]! + drift + sd * W[wo + p]!;
             ls[p] = y;
-            out[o1 + p] = Math.exp(y);
+            out[o1 + p] = exp(y);
           }
         } else if (d.kind === 'heston') {
           const vv = vNow[i]!;
@@ -482,10 +482,10 @@ export function prepareVariant(
           // its quanto drift; Brigo & Mercurio 2006, Sec. 2.10, section number from memory):
           // dv = [κ(θ − v) − ρ(v,X) σ σ_X √v] dt + σ √v dW_v under the domestic measure.
           const vqx = s.varQuantoCorr * s.quantoVol * sigma;
-          const ekm = vqx === 0 ? 0 : (1 - Math.exp(-kappa * h)) / kappa;
+          const ekm = vqx === 0 ? 0 : (1 - exp(-kappa * h)) / kappa;
           if (scheme === 'qe') {
             // Andersen (2008), Sec. 3.2.3–3.2.4: moments of V(t+h) | V(t), eqs. (17)–(18).
-            const ek = Math.exp(-kappa * h);
+            const ek = exp(-kappa * h);
             const c1 = (sigma * sigma * ek * (1 - ek)) / kappa;
             const c2 = (theta * sigma * sigma * (1 - ek) * (1 - ek)) / (2 * kappa);
             // Andersen (2008), eq. (33) with γ1 = γ2 = ½: ln S' = ln S + K0 + K1 V + K2 V' + √(K3 V + K4 V') Z.
@@ -520,15 +520,15 @@ export function prepareVariant(
                 Vn = a * bz * bz;
                 if (a < invA2) {
                   const d = 1 - 2 * A * a;
-                  k0 = (-A * b2 * a) / d + 0.5 * Math.log(d) - K13 * V;
+                  k0 = (-A * b2 * a) / d + 0.5 * log(d) - K13 * V;
                 }
               } else {
                 // Exponential branch, eqs. (29)–(30): P(V' = 0) = p, else exponential with rate β.
                 const pp = (psi - 1) / (psi + 1);
                 const beta = (1 - pp) / mean;
                 const u = normCdf(zv);
-                Vn = u <= pp ? 0 : Math.log((1 - pp) / (1 - u)) / beta;
-                if (A < beta) k0 = -Math.log(pp + (beta * (1 - pp)) / (beta - A)) - K13 * V;
+                Vn = u <= pp ? 0 : log((1 - pp) / (1 - u)) / beta;
+                if (A < beta) k0 = -log(pp + (beta * (1 - pp)) / (beta - A)) - K13 * V;
               }
               const iv = h * (g1 * V + g2 * Vn);
               const siv = Math.sqrt(iv);
@@ -539,7 +539,7 @@ export function prepareVariant(
               // computed from the QE law of V' with the shifted mean, so E[S'/S] stays exact.
               const y = ls[p]! + sr[p]! - q + k0 + K1 * V + K2 * Vn + siv * R - qx * sqh * siv;
               ls[p] = y;
-              out[o1 + p] = Math.exp(y);
+              out[o1 + p] = exp(y);
               vv[p] = Vn;
               vOut[o1 + p] = Vn;
             }
@@ -552,7 +552,7 @@ export function prepareVariant(
               const sv = Math.sqrt(vp * h);
               const y = ls[p]! + sr[p]! - q - 0.5 * vp * h + sv * W[wo + p]! - qx * Math.sqrt(vp) * h;
               ls[p] = y;
-              out[o1 + p] = Math.exp(y);
+              out[o1 + p] = exp(y);
               const Vn = V + (kappa * (theta - vp) - vqx * Math.sqrt(vp)) * h + sigma * sv * W[wv + p]!;
               vv[p] = Vn;
               vOut[o1 + p] = Vn > 0 ? Vn : 0;
@@ -568,7 +568,7 @@ export function prepareVariant(
             const sg = sig[p]!;
             const y = ls[p]! + sr[p]! - q - 0.5 * sg * sg * h - qx * sg * h + sg * sqh * W[wo + p]!;
             ls[p] = y;
-            const sv = Math.exp(y);
+            const sv = exp(y);
             sNow[p] = sv;
             out[o1 + p] = sv;
           }
@@ -587,7 +587,7 @@ export function prepareVariant(
         for (let p = 0; p < n; p++) {
           const y = lx[p]! + rd[p]! - rf[p]! + dr + sd * W[wo + p]!;
           lx[p] = y;
-          out[o1 + p] = Math.exp(y);
+          out[o1 + p] = exp(y);
         }
       }
       // 5. Domestic numeraire: 1/B(t_{k+1}) = exp(−∫_0^{t_{k+1}} r).
@@ -595,7 +595,7 @@ export function prepareVariant(
       for (let p = 0; p < n; p++) {
         const c = cumR[p]! + rd[p]!;
         cumR[p] = c;
-        discount[o1 + p] = Math.exp(-c);
+        discount[o1 + p] = exp(-c);
       }
     }
 
@@ -606,9 +606,9 @@ export function prepareVariant(
         fail('E_BAD_STEP_INDEX', 'bond.k', `must be a grid index 0..${nSteps}`, k);
       const t = times[k]!;
       if (!(T >= t - 1e-12)) fail('E_BOND_MATURITY', 'bond.T', `must be >= the observation time ${t}`, T);
-      const ratio = Math.log(rs.curve.df(T)) - Math.log(rs.curve.df(t));
+      const ratio = log(rs.curve.df(T)) - log(rs.curve.df(t));
       if (!rs.hw) {
-        out.fill(Math.exp(ratio), 0, n);
+        out.fill(exp(ratio), 0, n);
         return;
       }
       const hw = rs.hw;
@@ -618,7 +618,7 @@ export function prepareVariant(
       const r = shortRate[ccy]!;
       const ph = rs.phi[k]!;
       const o = k * n;
-      for (let p = 0; p < n; p++) out[p] = Math.exp(lnA - B * (r[o + p]! - ph));
+      for (let p = 0; p < n; p++) out[p] = exp(lnA - B * (r[o + p]! - ph));
     };
     return { nPaths: n, times, equity, variance, fx: fxOut, shortRate, discount, bond };
   };

@@ -12,6 +12,7 @@
  */
 import type { PathBatch, PathShift, VariantSpec } from './types.ts';
 import { fail } from '../errors.ts';
+import { exp } from '../math/detMath.ts';
 
 function scaleByTime(
   arr: Float64Array,
@@ -52,14 +53,14 @@ export function shiftBatch(batch: PathBatch, shift: PathShift, variant: VariantS
   for (const [name, arr] of Object.entries(batch.equity)) {
     const lam = spot[name] ?? 1;
     const d = rate[eqCcy.get(name) ?? ''] ?? 0;
-    equity[name] = lam === 1 && d === 0 ? arr : scaleByTime(arr, times, n, (t) => lam * Math.exp(d * t));
+    equity[name] = lam === 1 && d === 0 ? arr : scaleByTime(arr, times, n, (t) => lam * exp(d * t));
   }
   const dd = rate[variant.domestic] ?? 0;
   const fx: Record<string, Float64Array> = {};
   for (const x of variant.fx) {
     const arr = batch.fx[x.name]!;
     const g = dd - (rate[x.foreign] ?? 0);
-    fx[x.name] = g === 0 ? arr : scaleByTime(arr, times, n, (t) => Math.exp(g * t));
+    fx[x.name] = g === 0 ? arr : scaleByTime(arr, times, n, (t) => exp(g * t));
   }
   const shortRate: Record<string, Float64Array> = {};
   for (const [ccy, arr] of Object.entries(batch.shortRate)) {
@@ -71,13 +72,12 @@ export function shiftBatch(batch: PathBatch, shift: PathShift, variant: VariantS
       shortRate[ccy] = out;
     }
   }
-  const discount =
-    dd === 0 ? batch.discount : scaleByTime(batch.discount, times, n, (t) => Math.exp(-dd * t));
+  const discount = dd === 0 ? batch.discount : scaleByTime(batch.discount, times, n, (t) => exp(-dd * t));
   const bond = (ccy: string, k: number, T: number, out: Float64Array): void => {
     batch.bond(ccy, k, T, out);
     const d = rate[ccy] ?? 0;
     if (d === 0) return;
-    const m = Math.exp(-d * (T - times[k]!));
+    const m = exp(-d * (T - times[k]!));
     for (let p = 0; p < n; p++) out[p] = out[p]! * m;
   };
   return { nPaths: n, times, equity, variance: batch.variance, fx, shortRate, discount, bond };
