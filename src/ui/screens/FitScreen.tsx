@@ -320,9 +320,9 @@ function VariantFit(props: { v: LadderVariant; market: MarketSnapshot | undefine
                           <td>
                             K {num(l.parsed.strike, 6)}
                             {l.moneyness !== null ? ` (${l.moneyness.toFixed(3)} S₀)` : ''}
-                            {l.note === 'checkOnly' && <span className="hint"> · check, not fitted</span>}
+                            {l.note === 'checkOnly' && <span className="hint"> · check</span>}
                             {l.parsed.monteCarlo && l.note !== 'checkOnly' && (
-                              <span className="hint"> · repriced vanilla</span>
+                              <span className="hint"> · repriced</span>
                             )}
                           </td>
                           <td className="num">{pct(l.marketVol, 2)}</td>
@@ -421,8 +421,8 @@ function VariantFit(props: { v: LadderVariant; market: MarketSnapshot | undefine
             )}
             {notes.has('checkOnly') && (
               <li>
-                Check, not fitted: a vanilla this variant was not calibrated to, repriced to show how the
-                model extrapolates (drawn as a dashed circle on the smile).
+                Check: a vanilla this variant was not calibrated to, repriced to show how the model
+                extrapolates (drawn as a dashed circle on the smile).
               </li>
             )}
           </ul>
