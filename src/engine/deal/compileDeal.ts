@@ -28,6 +28,7 @@ import {
   type ProgramNode,
   type RunningSpec,
 } from './types.ts';
+import { exp, log, pow } from '../math/detMath.ts';
 
 /** Everything found while checking a deal; `compiled` is present when there is no error. */
 export interface DealCheck {
@@ -73,9 +74,9 @@ function scalarUnary(fn: string, a: number): number {
     case 'abs':
       return Math.abs(a);
     case 'exp':
-      return Math.exp(a);
+      return exp(a);
     case 'log':
-      return Math.log(a);
+      return log(a);
     case 'sqrt':
       return Math.sqrt(a);
     default:
@@ -94,7 +95,7 @@ function scalarBinary(fn: string, a: number, b: number): number {
     case 'div':
       return a / b;
     case 'pow':
-      return Math.pow(a, b);
+      return pow(a, b);
     case 'lt':
       return a < b ? 1 : 0;
     case 'le':

@@ -14,6 +14,7 @@
 import { EngineError, fail } from '../errors.ts';
 import type { PathBatch, PathEvaluator } from '../simulation/types.ts';
 import type { CompiledDeal, CompiledPayment, LevelSource, Program, ProgramNode } from './types.ts';
+import { exp, log, pow } from '../math/detMath.ts';
 
 /** Options for an evaluator. */
 export interface DealEvaluatorOptions {
@@ -180,9 +181,9 @@ function nodeFn(node: ProgramNode, names: Map<string, string>, nodes: readonly P
         case 'abs':
           return (env, v, out) => map1(env.n, v[a]!, out, Math.abs);
         case 'exp':
-          return (env, v, out) => map1(env.n, v[a]!, out, Math.exp);
+          return (env, v, out) => map1(env.n, v[a]!, out, exp);
         case 'log':
-          return (env, v, out) => map1(env.n, v[a]!, out, Math.log);
+          return (env, v, out) => map1(env.n, v[a]!, out, log);
         case 'sqrt':
           return (env, v, out) => map1(env.n, v[a]!, out, Math.sqrt);
         case 'floor':
@@ -345,7 +346,7 @@ function binaryFn(fn: string, ia: number, ib: number): NodeFn {
       });
     case 'pow':
       return loop((a, b, o, n) => {
-        for (let p = 0; p < n; p++) o[p] = Math.pow(a[p]!, b[p]!);
+        for (let p = 0; p < n; p++) o[p] = pow(a[p]!, b[p]!);
       });
     case 'lt':
       return loop((a, b, o, n) => {
@@ -543,7 +544,7 @@ export function makeDealRunner(compiled: CompiledDeal, opts: DealEvaluatorOption
       out: Float64Array,
     ): void => {
       const disc = batch.discount;
-      const fs = Math.exp(-spread * t) * notional;
+      const fs = exp(-spread * t) * notional;
       const conv = pay.conversion;
       const scale = conv !== null && conv.kind === 'quanto' ? conv.rate * fs : fs;
       const dv = conv !== null && conv.kind === 'compo' ? domesticValue(pay.currency) : null;
