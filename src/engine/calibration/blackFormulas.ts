@@ -13,6 +13,7 @@ import {
   bachelierPrice as normalPrice,
 } from '../models/bachelier.ts';
 import { blackUndiscounted, impliedSdFromUndiscounted } from '../models/blackScholes.ts';
+import { log } from '../math/detMath.ts';
 
 export { normCdf, normPdf };
 
@@ -41,7 +42,7 @@ export function blackVega(o: ForwardOption & { vol: number }): number {
   const df = o.df ?? 1;
   const sd = o.vol * Math.sqrt(o.expiry);
   if (!(sd > 0)) return 0;
-  const d1 = Math.log(o.forward / o.strike) / sd + 0.5 * sd;
+  const d1 = log(o.forward / o.strike) / sd + 0.5 * sd;
   return df * o.forward * normPdf(d1) * Math.sqrt(o.expiry);
 }
 

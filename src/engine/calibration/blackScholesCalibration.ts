@@ -14,6 +14,7 @@ import { equityForward, gridVolAt } from './volGrid.ts';
 import { hwB, hwSigmaAt, integratePieces } from './hullWhiteBondVol.ts';
 import { bsHullWhite } from '../models/bsHullWhite.ts';
 import { nowMs } from './clock.ts';
+import { pow } from '../math/detMath.ts';
 
 /** One vanilla the Black–Scholes term structure must match. */
 export interface VolTarget {
@@ -96,7 +97,7 @@ export function bsForwardVols(targets: VolTarget[], field = 'bs.targets'): BsCal
     let s = 0;
     dynamics.volTimes.forEach((e, j) => {
       const hi = Math.min(e, t.expiry);
-      if (hi > s) v += vols[j]! ** 2 * (hi - s);
+      if (hi > s) v += vols[j]! * vols[j]! * (hi - s);
       s = Math.max(s, e);
     });
     return (Math.sqrt(v / t.expiry) - t.vol) * 100;
@@ -127,7 +128,7 @@ export function bsHullWhiteRefit(input: {
   targets.forEach((t, i) => {
     const T = t.expiry;
     const b = (u: number) => hwSigmaAt(hw, u) * hwB(hw.a, u, T);
-    let known = integratePieces(hw, 0, T, (u) => b(u) ** 2);
+    let known = integratePieces(hw, 0, T, (u) => pow(b(u), 2));
     for (let j = 0; j < i; j++) {
       const lo = edges[j]!;
       const hi = edges[j + 1]!;

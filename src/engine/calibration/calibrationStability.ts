@@ -39,7 +39,7 @@ function cv(x: number[]): number {
   const n = x.length;
   if (n < 2) return NaN;
   const m = x.reduce((s, v) => s + v, 0) / n;
-  const v = x.reduce((s, y) => s + (y - m) ** 2, 0) / (n - 1);
+  const v = x.reduce((s, y) => s + (y - m) * (y - m), 0) / (n - 1);
   return Math.sqrt(v) / Math.abs(m);
 }
 

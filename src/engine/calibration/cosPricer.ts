@@ -15,6 +15,7 @@
  * Log of the characteristic function of y = ln(S_T / F_0) under the T-forward measure, at real u.
  * Writes the real part into out[0] and the imaginary part into out[1].
  */
+import { cos, exp, log, sin } from '../math/detMath.ts';
 export type LogCharFn = (u: number, out: Float64Array) => void;
 
 export interface CosSliceInput {
@@ -91,8 +92,8 @@ export function prepareCosSlice(o: {
   // U[k * nK + j]: put coefficient of strike j at term k (eq. 29), halved at k = 0.
   const U = new Float64Array(N * nK);
   o.strikes.forEach((K, j) => {
-    const a = Math.log(F / K) + lo;
-    const ea = Math.exp(a);
+    const a = log(F / K) + lo;
+    const ea = exp(a);
     for (let k = 0; k < N; k++) {
       const wk = k * w;
       let chi: number;
@@ -101,8 +102,8 @@ export function prepareCosSlice(o: {
         chi = 1 - ea;
         psi = -a;
       } else {
-        const c = Math.cos(wk * a);
-        const s = Math.sin(wk * a);
+        const c = cos(wk * a);
+        const s = sin(wk * a);
         chi = (c - ea - wk * s) / (1 + wk * wk);
         psi = -s / wk;
       }
@@ -119,14 +120,14 @@ export function prepareCosSlice(o: {
       for (let k = 0; k < N; k++) {
         const u = k * w;
         logChf(u, out);
-        const mag = Math.exp(out[0]!);
+        const mag = exp(out[0]!);
         // The series stops where |φ| has become negligible (< 1e-16 three times in a row), and where it would grow
         // again (|φ| > 1, or rising after having fallen): a true characteristic function never exceeds 1, so growth
         // means an approximate one (e.g. H1-HW with ρ(S,r) < 0, whose Gaussian factor has negative variance) has left
         // the range where it approximates anything (common practice: truncate the Fourier integral there).
         if (k > 0 && (mag > 1 + 1e-9 || (mag > prevMag * (1 + 1e-9) && mag < 0.5))) break;
         prevMag = mag;
-        const re = mag * Math.cos(out[1]! - u * lo);
+        const re = mag * cos(out[1]! - u * lo);
         const row = k * nK;
         for (let j = 0; j < nK; j++) sums[j] += re * U[row + j]!;
         if (mag < 1e-16) {

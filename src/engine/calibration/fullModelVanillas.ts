@@ -14,6 +14,7 @@ import { testPayoffFactory, type TestPayoff } from '../simulation/testPayoffs.ts
 import { blackImpliedVol, blackVega } from './blackFormulas.ts';
 import type { VolQuote } from './volGrid.ts';
 import { nowMs } from './clock.ts';
+import { exp } from '../math/detMath.ts';
 
 export interface FullModelInput {
   name: string;
@@ -99,7 +100,7 @@ export function fullModelVanillas(input: FullModelInput): FullModelResult {
   let sums = emptySums(payoffs.length);
   for (let b = 0; b < batchCount(spec); b++) sums = mergeSums(sums, simulateBatch(ctx, b).sums);
   const cv = input.quotes.map((q, i) =>
-    controlVariate(sums, i, controlCol.get(q.expiry)!, input.spot * Math.exp(-input.divYield * q.expiry)),
+    controlVariate(sums, i, controlCol.get(q.expiry)!, input.spot * exp(-input.divYield * q.expiry)),
   );
   const prices = cv.map((c) => c.mean);
   const priceSe = cv.map((c) => c.se);

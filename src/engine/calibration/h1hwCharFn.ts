@@ -16,6 +16,7 @@ import type { HestonParams, HullWhiteParams } from '../simulation/types.ts';
 import type { LogCharFn } from './cosPricer.ts';
 import { hestonLogChf } from './hestonCharFn.ts';
 import { hwB, hwSigmaAt, integratePieces } from './hullWhiteBondVol.ts';
+import { exp, log, pow, sin } from '../math/detMath.ts';
 
 /** ln Γ(x) for x > 0 by the Lanczos approximation (g = 7, n = 9; C. Lanczos, SIAM J. Numer. Anal. B1, 1964). */
 export function logGamma(x: number): number {
@@ -23,12 +24,12 @@ export function logGamma(x: number): number {
     0.99999999999980993, 676.5203681218851, -1259.1392167224028, 771.32342877765313, -176.61502916214059,
     12.507343278686905, -0.13857109526572012, 9.9843695780195716e-6, 1.5056327351493116e-7,
   ];
-  if (x < 0.5) return Math.log(Math.PI / Math.abs(Math.sin(Math.PI * x))) - logGamma(1 - x);
+  if (x < 0.5) return log(Math.PI / Math.abs(sin(Math.PI * x))) - logGamma(1 - x);
   const z = x - 1;
   let a = c[0]!;
   const t = z + 7.5;
   for (let i = 1; i < 9; i++) a += c[i]! / (z + i);
-  return 0.5 * Math.log(2 * Math.PI) + (z + 0.5) * Math.log(t) - t + Math.log(a);
+  return 0.5 * log(2 * Math.PI) + (z + 0.5) * log(t) - t + log(a);
 }
 
 /**
@@ -40,26 +41,27 @@ export function logGamma(x: number): number {
 export function expectedSqrtVariance(p: HestonParams, t: number): number {
   const { v0, kappa, theta, sigma } = p;
   if (t <= 0) return Math.sqrt(v0);
-  const e = Math.exp(-kappa * t);
+  const e = exp(-kappa * t);
   const cbar = (sigma * sigma * (1 - e)) / (4 * kappa);
   const delta = (4 * kappa * theta) / (sigma * sigma);
   const lam = (4 * kappa * v0 * e) / (sigma * sigma * (1 - e));
   if (!(lam <= 2e4)) {
     const m = v0 * e + theta * (1 - e);
     const v =
-      (v0 * sigma * sigma * e * (1 - e)) / kappa + (theta * sigma * sigma * (1 - e) ** 2) / (2 * kappa);
-    return Math.sqrt(m) - v / (8 * m ** 1.5);
+      (v0 * sigma * sigma * e * (1 - e)) / kappa +
+      (theta * sigma * sigma * ((1 - e) * (1 - e))) / (2 * kappa);
+    return Math.sqrt(m) - v / (8 * pow(m, 1.5));
   }
   const half = 0.5 * lam;
   const a = 0.5 * (delta + 1);
   const b = 0.5 * delta;
   let logTerm = -half + logGamma(a) - logGamma(b);
-  let sum = Math.exp(logTerm);
+  let sum = exp(logTerm);
   const kMin = half + 10 * Math.sqrt(half) + 20;
-  const logHalf = half > 0 ? Math.log(half) : -Infinity;
+  const logHalf = half > 0 ? log(half) : -Infinity;
   for (let k = 1; k < 200000; k++) {
-    logTerm += logHalf - Math.log(k) + Math.log(k - 1 + a) - Math.log(k - 1 + b);
-    const term = Math.exp(logTerm);
+    logTerm += logHalf - log(k) + log(k - 1 + a) - log(k - 1 + b);
+    const term = exp(logTerm);
     sum += term;
     if (k > kMin && term < 1e-17 * sum) break;
     if (half === 0) break;

@@ -15,6 +15,7 @@ import { blackImpliedVol, blackPrice } from './blackFormulas.ts';
 import { fitLeastSquares, type FitParameter, type FitReport } from './levenbergMarquardt.ts';
 import { gridArbitrageIssues, gridQuotes, type VolQuote } from './volGrid.ts';
 import { nowMs } from './clock.ts';
+import { log, pow } from '../math/detMath.ts';
 
 export const HESTON_NAMES = ['v0', 'kappa', 'theta', 'sigma', 'rho'] as const;
 
@@ -201,15 +202,12 @@ export function defaultHestonStarts(quotes: VolQuote[]): HestonParams[] {
   const atm = (s: { idx: number[] }) => {
     let best = quotes[s.idx[0]!]!;
     for (const i of s.idx)
-      if (
-        Math.abs(Math.log(quotes[i]!.strike / quotes[i]!.forward)) <
-        Math.abs(Math.log(best.strike / best.forward))
-      )
+      if (Math.abs(log(quotes[i]!.strike / quotes[i]!.forward)) < Math.abs(log(best.strike / best.forward)))
         best = quotes[i]!;
     return best.vol;
   };
-  const vShort = atm(byT[0]!) ** 2;
-  const vLong = atm(byT[byT.length - 1]!) ** 2;
+  const vShort = pow(atm(byT[0]!), 2);
+  const vLong = pow(atm(byT[byT.length - 1]!), 2);
   return [
     { v0: vShort, kappa: 1.5, theta: vLong, sigma: 0.5, rho: -0.6 },
     { v0: vShort, kappa: 3, theta: vLong, sigma: 0.9, rho: -0.4 },
@@ -261,7 +259,11 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
         residuals,
         weights: input.weights,
         constraints: [
-          { name: 'Feller 2κθ − σ² ≥ 0', mode: 'report', g: (p) => 2 * p.kappa! * p.theta! - p.sigma! ** 2 },
+          {
+            name: 'Feller 2κθ − σ² ≥ 0',
+            mode: 'report',
+            g: (p) => 2 * p.kappa! * p.theta! - p.sigma! * p.sigma!,
+          },
         ],
       },
       { maxEvaluations: input.maxEvaluations ?? 300, costTol: 1e-10 },

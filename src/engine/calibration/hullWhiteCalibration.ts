@@ -303,7 +303,7 @@ export function calibrateHullWhite(input: HullWhiteCalibrationInput): HullWhiteC
       field: q.field,
     };
   });
-  const rmseVol = Math.sqrt(rows.reduce((s, r) => s + r.volError ** 2, 0) / rows.length);
+  const rmseVol = Math.sqrt(rows.reduce((s, r) => s + r.volError * r.volError, 0) / rows.length);
   const tol = input.tolerance ?? (unit === 'bp' ? 1 : 0.5);
   const warnings = [...fit.warnings];
   if (rmseVol > tol)

@@ -275,7 +275,9 @@ function calibrateWith(sh: Shared, factors: FactorSet): VariantCalibration {
     return { name, currency: ccy, spot: eq.spot, divYield: eq.divYield, dynamics };
   });
   const reps = Object.values(reports);
-  const rmse = Math.sqrt(reps.reduce((s, r) => s + r.rmseVolPoints ** 2, 0) / Math.max(reps.length, 1));
+  const rmse = Math.sqrt(
+    reps.reduce((s, r) => s + r.rmseVolPoints * r.rmseVolPoints, 0) / Math.max(reps.length, 1),
+  );
   for (const c of Object.keys(hullWhite)) if (!sh.hw[c]!.ok) ok = false;
   return {
     id: factorSetId(factors),

@@ -10,6 +10,7 @@
 import { issue, type FieldIssue } from '../errors.ts';
 import { spdCholesky, spdInverse, spdSolve, symmetricEigen } from '../math/linalg.ts';
 import { nowMs } from './clock.ts';
+import { exp, hypotOf, log } from '../math/detMath.ts';
 
 /** One named model parameter of a fit. */
 export interface FitParameter {
@@ -93,28 +94,28 @@ function transformFor(par: FitParameter): Transform {
   const hi = par.upper;
   if (lo !== undefined && hi !== undefined)
     return {
-      toP: (z) => lo + (hi - lo) / (1 + Math.exp(-z)),
+      toP: (z) => lo + (hi - lo) / (1 + exp(-z)),
       dPdZ: (z) => {
-        const e = 1 / (1 + Math.exp(-z));
+        const e = 1 / (1 + exp(-z));
         return (hi - lo) * e * (1 - e);
       },
       toZ: (p) => {
         const span = hi - lo;
         const x = Math.min(Math.max((p - lo) / span, 1e-9), 1 - 1e-9);
-        return Math.log(x / (1 - x));
+        return log(x / (1 - x));
       },
     };
   if (lo !== undefined)
     return {
-      toP: (z) => lo + Math.exp(z),
-      toZ: (p) => Math.log(Math.max(p - lo, 1e-12)),
-      dPdZ: (z) => Math.exp(z),
+      toP: (z) => lo + exp(z),
+      toZ: (p) => log(Math.max(p - lo, 1e-12)),
+      dPdZ: (z) => exp(z),
     };
   if (hi !== undefined)
     return {
-      toP: (z) => hi - Math.exp(z),
-      toZ: (p) => Math.log(Math.max(hi - p, 1e-12)),
-      dPdZ: (z) => -Math.exp(z),
+      toP: (z) => hi - exp(z),
+      toZ: (p) => log(Math.max(hi - p, 1e-12)),
+      dPdZ: (z) => -exp(z),
     };
   // Unbounded: scaled by the starting magnitude so every z is of order one (steps and tolerances compare alike).
   const sc = Math.abs(par.initial) > 1e-12 ? Math.abs(par.initial) : 1;
@@ -239,8 +240,8 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
         L,
         g.map((x) => -x),
       );
-      const zNorm = Math.hypot(...z);
-      if (Math.hypot(...h) <= eps2 * (zNorm + eps2)) {
+      const zNorm = hypotOf(z);
+      if (hypotOf(h) <= eps2 * (zNorm + eps2)) {
         stopReason = 'step';
         break;
       }
@@ -263,7 +264,7 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
         }
         J = jacobianZ(z, r);
         ({ A, g } = normalEq(J, r));
-        mu *= Math.max(1 / 3, 1 - (2 * gain - 1) ** 3);
+        mu *= Math.max(1 / 3, 1 - (2 * gain - 1) * (2 * gain - 1) * (2 * gain - 1));
         nu = 2;
       } else {
         mu *= nu;

@@ -19,6 +19,7 @@ import { batchCount, BUILTIN_TEST_PAYOFFS, type RunSpec } from '../simulation/ru
 import { testPayoffFactory, type TestPayoff } from '../simulation/testPayoffs.ts';
 import { blackImpliedVol, blackVega } from './blackFormulas.ts';
 import { nowMs } from './clock.ts';
+import { exp } from '../math/detMath.ts';
 
 export type LocalVolDynamics = Extract<EquityDynamics, { kind: 'localvol' }>;
 
@@ -176,7 +177,7 @@ export function localVolRepricing(input: {
       sums,
       i,
       ctl.get(q.expiry)!,
-      input.equity.spot * Math.exp(-input.equity.divYield * q.expiry),
+      input.equity.spot * exp(-input.equity.divYield * q.expiry),
     );
     const mcVol = blackImpliedVol({ ...q, price: c.mean });
     const vega = blackVega(q);

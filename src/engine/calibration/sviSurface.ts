@@ -14,6 +14,7 @@ import type { DiscountCurve, EquityQuote } from '../market/types.ts';
 import { issue, type FieldIssue } from '../errors.ts';
 import { fitLeastSquares } from './levenbergMarquardt.ts';
 import { equityForward, gridStrikes } from './volGrid.ts';
+import { log } from '../math/detMath.ts';
 
 /** Raw SVI parameters of one expiry. */
 export interface SviSlice {
@@ -56,7 +57,7 @@ export function sviDerivatives(
  * the terminal law is non-negative where g ≥ 0. It is also the denominator of Dupire's formula in total-variance form.
  */
 export function butterflyG(w: number, w1: number, w2: number, k: number): number {
-  return (1 - (k * w1) / (2 * w)) ** 2 - ((w1 * w1) / 4) * (1 / w + 0.25) + w2 / 2;
+  return (1 - (k * w1) / (2 * w)) * (1 - (k * w1) / (2 * w)) - ((w1 * w1) / 4) * (1 / w + 0.25) + w2 / 2;
 }
 
 const K_GRID = Array.from({ length: 41 }, (_, i) => -1.5 + (3 * i) / 40);
@@ -69,7 +70,7 @@ export function fitSviSurface(equity: EquityQuote, curve: DiscountCurve, field =
   let maxAbs = 0;
   equity.vols.expiries.forEach((T, i) => {
     const F = equityForward(equity, curve, T);
-    const ks = strikes.map((K) => Math.log(K / F));
+    const ks = strikes.map((K) => log(K / F));
     const vols = equity.vols.vols[i]!;
     const prev = slices[slices.length - 1];
     const atm = vols[ks.reduce((best, k, j) => (Math.abs(k) < Math.abs(ks[best]!) ? j : best), 0)]!;

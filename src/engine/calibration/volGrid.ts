@@ -9,6 +9,7 @@ import type { DiscountCurve, EquityQuote } from '../market/types.ts';
 import { equityForward as marketForward } from '../market/equity.ts';
 import { issue, type FieldIssue } from '../errors.ts';
 import { blackPrice, blackVega } from './blackFormulas.ts';
+import { log, pow } from '../math/detMath.ts';
 
 /** One quoted vanilla of the grid, with everything a calibration instrument needs. */
 export interface VolQuote {
@@ -169,16 +170,18 @@ export function gridArbitrageIssues(
     }
   }
   for (let i = 1; i < T.length; i++) {
-    const kPrev = strikes.map((K) => Math.log(K / fwd[i - 1]!));
-    const kNext = strikes.map((K) => Math.log(K / fwd[i]!));
+    const kPrev = strikes.map((K) => log(K / fwd[i - 1]!));
+    const kNext = strikes.map((K) => log(K / fwd[i]!));
     for (let j = 0; j < strikes.length; j++) {
       const k = kPrev[j]!;
       if (k < kNext[0]! || k > kNext[kNext.length - 1]!) continue;
       let m = 0;
       while (m + 1 < kNext.length - 1 && kNext[m + 1]! < k) m++;
       const w = (k - kNext[m]!) / (kNext[m + 1]! - kNext[m]!);
-      const wNext = (1 - w) * g.vols[i]![m]! ** 2 * T[i]! + w * g.vols[i]![m + 1]! ** 2 * T[i]!;
-      const wPrev = g.vols[i - 1]![j]! ** 2 * T[i - 1]!;
+      const wNext =
+        (1 - w) * (g.vols[i]![m]! * g.vols[i]![m]!) * T[i]! +
+        w * (g.vols[i]![m + 1]! * g.vols[i]![m + 1]!) * T[i]!;
+      const wPrev = g.vols[i - 1]![j]! * g.vols[i - 1]![j]! * T[i - 1]!;
       if (wNext < wPrev - 1e-6)
         issues.push(
           issue(
@@ -203,7 +206,7 @@ export function gridVolAt(eq: EquityQuote, curve: DiscountCurve, T: number, K: n
   const strikes = gridStrikes(eq);
   const rowVol = (i: number, k: number) => {
     const F = equityForward(eq, curve, g.expiries[i]!);
-    const ks = strikes.map((s) => Math.log(s / F));
+    const ks = strikes.map((s) => log(s / F));
     if (k <= ks[0]!) return g.vols[i]![0]!;
     if (k >= ks[ks.length - 1]!) return g.vols[i]![ks.length - 1]!;
     let m = 0;
@@ -211,14 +214,14 @@ export function gridVolAt(eq: EquityQuote, curve: DiscountCurve, T: number, K: n
     const w = (k - ks[m]!) / (ks[m + 1]! - ks[m]!);
     return (1 - w) * g.vols[i]![m]! + w * g.vols[i]![m + 1]!;
   };
-  const k = Math.log(K / equityForward(eq, curve, T));
+  const k = log(K / equityForward(eq, curve, T));
   const E = g.expiries;
   if (T <= E[0]!) return rowVol(0, k);
   if (T >= E[E.length - 1]!) return rowVol(E.length - 1, k);
   let i = 0;
   while (E[i + 1]! < T) i++;
-  const w0 = rowVol(i, k) ** 2 * E[i]!;
-  const w1 = rowVol(i + 1, k) ** 2 * E[i + 1]!;
+  const w0 = pow(rowVol(i, k), 2) * E[i]!;
+  const w1 = pow(rowVol(i + 1, k), 2) * E[i + 1]!;
   const w = (T - E[i]!) / (E[i + 1]! - E[i]!);
   return Math.sqrt(Math.max(((1 - w) * w0 + w * w1) / T, 0));
 }
