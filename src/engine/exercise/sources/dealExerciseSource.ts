@@ -33,6 +33,7 @@ import { makeTimeGrid } from '../../simulation/timeGrid.ts';
 import type { PathBatch, VariantSpec } from '../../simulation/types.ts';
 import type { ExerciseSource } from '../source.ts';
 import type { ExerciseHolder, ExerciseRight, ExerciseSample } from '../types.ts';
+import { exp } from '../../math/detMath.ts';
 
 /** Inputs of {@link dealExerciseSource}. */
 export interface DealExerciseSourceSpec {
@@ -128,7 +129,7 @@ export function dealExerciseSample(
         state.set(f, (k * names.length + v) * P);
       });
       const off = col.step * P;
-      const fund = Math.exp(-funding * times[j]!);
+      const fund = exp(-funding * times[j]!);
       for (let p = 0; p < P; p++) deflator[k * P + p] = batch.discount[off + p]! * fund;
     }
     seen[j] = 1;

@@ -19,6 +19,7 @@ import { makeNormalSource, makeUniformStream } from '../../random/index.ts';
 import { hwB, hwIntegrals, makeHullWhiteTerms } from '../../simulation/hullWhiteTerms.ts';
 import type { ExerciseSource } from '../source.ts';
 import type { ExerciseRight, ExerciseSample } from '../types.ts';
+import { exp } from '../../math/detMath.ts';
 
 /** A Bermudan swaption under Hull–White (times in years, rates as decimals). */
 export interface HullWhiteBermudanSwaptionSpec {
@@ -96,7 +97,7 @@ export function hullWhiteBermudanSwaptionSource(spec: HullWhiteBermudanSwaptionS
       const e = from + k;
       const t = times[e]!;
       const h = t - tPrev;
-      const decay = Math.exp(-a * h);
+      const decay = exp(-a * h);
       const b = hwB(a, h);
       const var1 = sigma * sigma * hwB(2 * a, h);
       const var2 = sigma * sigma * hwIntegrals(a, h).intB2;
@@ -108,7 +109,7 @@ export function hullWhiteBermudanSwaptionSource(spec: HullWhiteBermudanSwaptionS
       normals.fill(z1, 0, nPaths);
       normals.fill(z2, 0, nPaths);
       // Deflator relative to the start: P(0,t)/P(0,tStart) · exp(−½(V(0,t) − V(0,tStart)) − ∫x).
-      const base = d0 * (df0[e]! / df0Start) * Math.exp(-0.5 * (v0[e]! - v0Start));
+      const base = d0 * (df0[e]! / df0Start) * exp(-0.5 * (v0[e]! - v0Start));
       const off = k * nPaths;
       const kPay = firstPay[e]!;
       for (let p = 0; p < nPaths; p++) {
@@ -118,7 +119,7 @@ export function hullWhiteBermudanSwaptionSource(spec: HullWhiteBermudanSwaptionS
         y[p] = y[p]! + xs * b + e2;
         const xn = xs * decay + e1;
         x[p] = xn;
-        const d = base * Math.exp(-y[p]!);
+        const d = base * exp(-y[p]!);
         let bond = 0;
         for (let i = kPay; i < m; i++)
           bond += (spec.strike * acc[i]! + (i === m - 1 ? 1 : 0)) * hw.bond(t, spec.payTimes[i]!, xn);

@@ -8,6 +8,7 @@ import { fail, requireNonNegative, requirePositive } from '../../errors.ts';
 import { makeNormalSource, makeUniformStream } from '../../random/index.ts';
 import type { ExerciseSource } from '../source.ts';
 import type { ExerciseRight, ExerciseSample } from '../types.ts';
+import { exp } from '../../math/detMath.ts';
 
 /** Inputs of a Bermudan equity option (units: money for spot and strike, years for times, decimals per year). */
 export interface LognormalBermudanSpec {
@@ -81,10 +82,10 @@ export function lognormalBermudanSource(spec: LognormalBermudanSpec): ExerciseSo
       const drift = (spec.rate - q - 0.5 * spec.vol * spec.vol) * dt;
       const sd = spec.vol * Math.sqrt(dt);
       normals.fill(z, 0, nPaths);
-      const df = Math.exp(-spec.rate * t);
+      const df = exp(-spec.rate * t);
       const off = k * nPaths;
       for (let p = 0; p < nPaths; p++) {
-        const v = s[p]! * Math.exp(drift + sd * z[p]!);
+        const v = s[p]! * exp(drift + sd * z[p]!);
         s[p] = v;
         state[off + p] = v;
         exerciseValue[off + p] = df * Math.max(sign * (K - v), 0);
