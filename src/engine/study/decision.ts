@@ -10,6 +10,7 @@
  */
 import { fail, requireNonNegative, requirePositive } from '../errors.ts';
 import { normQuantile, normSf } from './stats.ts';
+import { log } from '../math/detMath.ts';
 
 /** Largest critical value reported: Φ⁻¹ beyond it is below double precision (Φ(−38) ≈ 3e−316). */
 export const Z_MAX = 38;
@@ -88,7 +89,7 @@ export type SpendingKind = 'obrienFleming' | 'pocock';
 export function alphaSpent(kind: SpendingKind, alpha: number, t: number): number {
   const tt = Math.min(1, Math.max(0, t));
   if (tt === 0) return 0;
-  if (kind === 'pocock') return alpha * Math.log(1 + (Math.E - 1) * tt);
+  if (kind === 'pocock') return alpha * log(1 + (Math.E - 1) * tt);
   return 2 * normSf(normQuantile(1 - alpha / 2) / Math.sqrt(tt));
 }
 

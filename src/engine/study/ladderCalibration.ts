@@ -42,6 +42,7 @@ import { refitHestonUnderRates } from '../calibration/hestonRefit.ts';
 import { gridQuotes, type VolQuote } from '../calibration/volGrid.ts';
 import type { CalibrationMode, FitRow, LadderVariant } from './types.ts';
 import { FACTOR_IDS, type FactorId } from './rules.ts';
+import { log } from '../math/detMath.ts';
 
 const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
 
@@ -175,7 +176,7 @@ function fitBs(
     : bsForwardVols(targets, field);
   const rows: FitRow[] = targets.map((t, i) => {
     const err = cal.repricingErrorPoints[i]! / 100;
-    const r = -Math.log(curve.df(t.expiry)) / t.expiry;
+    const r = -log(curve.df(t.expiry)) / t.expiry;
     const px = (vol: number) =>
       bsPrice({ type: 'call', S: eq.spot, K: t.strike, T: t.expiry, r, q: eq.divYield, vol });
     return {

@@ -3,6 +3,7 @@
  * linear combination of column means. Kept inside the study so the decision rule does not depend on the order in
  * which other layers land.
  */
+import { exp, log } from '../math/detMath.ts';
 
 /**
  * erf(x) by its Maclaurin series, Abramowitz & Stegun (1964) eq. 7.1.5, for |x| < 2.5.
@@ -39,7 +40,7 @@ function erfcPositive(x: number): number {
     f *= delta;
     if (Math.abs(delta - 1) < 1e-16) break;
   }
-  return Math.exp(-x * x) / (Math.sqrt(Math.PI) * f);
+  return exp(-x * x) / (Math.sqrt(Math.PI) * f);
 }
 
 /** Standard normal cdf Φ(x) = erfc(−x/√2)/2. */
@@ -63,13 +64,13 @@ export function normQuantile(p: number): number {
   if (p > 0.5) return -normQuantile(1 - p);
   let lo = -40;
   let hi = 0;
-  let x = Math.log(p / (1 - p)) / 1.702; // logistic approximation of Φ as a start
+  let x = log(p / (1 - p)) / 1.702; // logistic approximation of Φ as a start
   x = Math.max(-38, Math.min(0, x));
   for (let i = 0; i < 100; i++) {
     const f = normCdf(x) - p;
     if (f > 0) hi = x;
     else lo = x;
-    const pdf = Math.exp(-0.5 * x * x) / Math.sqrt(2 * Math.PI);
+    const pdf = exp(-0.5 * x * x) / Math.sqrt(2 * Math.PI);
     let next = x - f / pdf;
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
     if (Math.abs(next - x) < 1e-15 * Math.max(1, Math.abs(x))) return next;

@@ -5,6 +5,7 @@
  * Pure engine code: batches run on whatever executor the caller supplies (in process by default).
  */
 import { EngineError, fail } from '../errors.ts';
+import { log } from '../math/detMath.ts';
 import { compileDeal } from '../deal/compileDeal.ts';
 import { analyseDeal } from '../deal/analyseDeal.ts';
 import { studyDealFactoryUrl } from './studyDealFactory.ts';
@@ -253,8 +254,8 @@ function fairnessVanillas(
         const K = F * m;
         const vol = gridVolAt(q, curve, T, K);
         const isCall = K >= F;
-        const r = -Math.log(curve.df(T)) / T;
-        const qq = r - Math.log(F / q.spot) / T;
+        const r = -log(curve.df(T)) / T;
+        const qq = r - log(F / q.spot) / T;
         const market = bsPrice({ type: isCall ? 'call' : 'put', S: q.spot, K, T, r, q: qq, vol });
         out.push({ equity: e.marketName, expiry: T, strike: K, isCall, market, vol, atm: m === 1 });
       }
@@ -806,7 +807,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           const mc = st.mean(c);
           const eqq = snap.equities[q.equity]!;
           const curve = makeCurve(snap.curves[eqq.currency]!, 'curve');
-          const r0 = -Math.log(curve.df(q.expiry)) / q.expiry;
+          const r0 = -log(curve.df(q.expiry)) / q.expiry;
           const F = equityForward(eqq, curve, q.expiry);
           let iv = q.vol;
           try {
@@ -817,7 +818,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
               K: q.strike,
               T: q.expiry,
               r: r0,
-              q: r0 - Math.log(F / eqq.spot) / q.expiry,
+              q: r0 - log(F / eqq.spot) / q.expiry,
             });
           } catch {
             iv = q.vol;
