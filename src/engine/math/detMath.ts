@@ -74,32 +74,34 @@ const P2 = -2.77777777770155933842e-3;
 const P3 = 6.61375632143793436117e-5;
 const P4 = -1.6533902205465251539e-6;
 const P5 = 4.13813679705723846039e-8;
+/** Doubles with the high words fdlibm's e_exp.c compares against, and a low word of zero. */
+const EXP_BIG = fromHigh(0x40862e42);
+const EXP_HALF_LN2 = fromHigh(0x3fd62e43);
+const EXP_1P5_LN2 = fromHigh(0x3ff0a2b2);
+const EXP_TINY = fromHigh(0x3e300000);
 
 /**
  * e^x (fdlibm 5.3 e_exp.c): x = k·ln2 + r with |r| ≤ ln2/2 (Cody–Waite, ln2 in two parts), e^r from the Remez
  * rational form 1 + r + r·c/(2 − c), c = r − r²·(P1 + r²·(P2 + ...)), then scaled by 2^k. Error < 1 ulp.
  */
 export function exp(x: number): number {
-  F64[0] = x;
-  let hx = I32[HI]!;
-  const neg = hx < 0;
-  hx &= 0x7fffffff;
+  // fdlibm branches on the high word hx of |x|; each test hx ≥ H is |x| ≥ (the double with high word H, low word 0),
+  // so plain comparisons take the same branches without a pass through the word view (faster in the inner loops).
+  if (x !== x) return x + x; // NaN
+  const ax = x < 0 ? -x : x;
+  const neg = x < 0;
   let hi = 0;
   let lo = 0;
   let k = 0;
-  if (hx >= 0x40862e42) {
-    // |x| ≥ 709.78
-    if (hx >= 0x7ff00000) {
-      if (((hx & 0xfffff) | U32[LO]!) !== 0) return x + x; // NaN
-      return neg ? 0 : x; // e^−∞ = 0, e^+∞ = +∞
-    }
-    if (x > O_THRESHOLD) return HUGE * HUGE; // overflow
-    if (x < U_THRESHOLD) return TWOM1000 * TWOM1000; // underflow
+  if (ax >= EXP_BIG) {
+    // hx ≥ 0x40862e42: |x| ≥ 709.78
+    if (x > O_THRESHOLD) return HUGE * HUGE; // overflow, and e^+∞ = +∞
+    if (x < U_THRESHOLD) return TWOM1000 * TWOM1000; // underflow, and e^−∞ = 0
   }
-  if (hx > 0x3fd62e42) {
-    // |x| > ln2/2
-    if (hx < 0x3ff0a2b2) {
-      // |x| < 1.5·ln2
+  if (ax >= EXP_HALF_LN2) {
+    // hx > 0x3fd62e42: |x| > ln2/2
+    if (ax < EXP_1P5_LN2) {
+      // hx < 0x3ff0a2b2: |x| < 1.5·ln2
       if (neg) {
         hi = x + LN2_HI;
         lo = -LN2_LO;
@@ -115,8 +117,8 @@ export function exp(x: number): number {
       lo = k * LN2_LO;
     }
     x = hi - lo;
-  } else if (hx < 0x3e300000) {
-    // |x| < 2^−28
+  } else if (ax < EXP_TINY) {
+    // hx < 0x3e300000: |x| < 2^−28
     if (HUGE + x > 1) return 1 + x;
   }
   const t = x * x;
