@@ -150,11 +150,10 @@ const LG7 = 1.479819860511658591e-1;
 export function log(x: number): number {
   F64[0] = x;
   let hx = I32[HI]!;
-  const lx = U32[LO]!;
   let k = 0;
   if (hx < 0x00100000) {
     // x < 2^−1022
-    if (((hx & 0x7fffffff) | lx) === 0) return -Infinity;
+    if (x === 0) return -Infinity; // log(±0)
     if (hx < 0) return NaN;
     k -= 54;
     x *= TWO54; // scale up a subnormal
