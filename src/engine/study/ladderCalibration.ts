@@ -514,8 +514,9 @@ export function calibrateLadder(req: LadderRequest): CalibratedLadder {
       correlation: { names, matrix },
       hestonScheme: req.scheme,
     };
+    // Equity vol errors only: rate rows are named `<CCY> caplet …` or `<CCY> swaption …` (their units differ).
     const eqErrs = fit
-      .filter((f) => !f.instrument.includes('caplet'))
+      .filter((f) => !/^\S+ (caplet|swaption) /.test(f.instrument))
       .map((f) => Math.abs(f.modelVol - f.marketVol));
     variants.push({
       id,
