@@ -17,7 +17,15 @@ import {
 import { makeNodeWorkerExecutor } from '../../engine/simulation/runner.node.ts';
 import { studyInProcessExecutor } from '../../engine/study/studyExecutor.ts';
 import { renderReport, CAUTION } from '../../report/index.ts';
-import { readFileSync, renameSync, writeFileSync, unlinkSync, existsSync, statSync } from 'node:fs';
+import {
+  readFileSync,
+  renameSync,
+  writeFileSync,
+  unlinkSync,
+  existsSync,
+  statSync,
+  mkdirSync,
+} from 'node:fs';
 
 // File helpers (also used by verify and diff): one clear message per unreadable input; atomic writes (a temporary
 // file in the same folder, then a rename, so a reader never sees half a file).
@@ -46,6 +54,7 @@ export function writeFileAtomic(file: string, text: string): void {
   const dir = path.dirname(path.resolve(file));
   const tmp = path.join(dir, `.${path.basename(file)}.${process.pid}.${Date.now()}.tmp`);
   try {
+    mkdirSync(dir, { recursive: true });
     writeFileSync(tmp, text, 'utf8');
     renameSync(tmp, file);
   } catch (e) {
