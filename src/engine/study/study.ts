@@ -4,6 +4,7 @@
  * Shapley attribution, hedge-ratio tests → evidence of fairness → correlation sweeps → other snapshots → sealed file.
  * Pure engine code: batches run on whatever executor the caller supplies (in process by default).
  */
+import { DEFAULT_SETTINGS } from './defaults.ts';
 import { EngineError, fail } from '../errors.ts';
 import { log } from '../math/detMath.ts';
 import { compileDeal } from '../deal/compileDeal.ts';
@@ -96,33 +97,7 @@ function fmtStep(t: number): string {
   return `${Math.round(t * 365 * 10) / 10} days`;
 }
 
-/** Default settings; every field can be overridden. */
-export const DEFAULT_SETTINGS: StudySettings = {
-  seed: 'factor-triage',
-  paths: 65536,
-  firstPaths: 8192,
-  batchSize: 4096,
-  maxStep: 0.25,
-  scheme: 'qe',
-  alpha: 0.05,
-  spending: 'obrienFleming',
-  threshold: { kind: 'bp', value: 10 },
-  calibration: 'fair',
-  greeks: {
-    spotBump: 0.01,
-    rateBump: 1e-4,
-    volBump: 0.01,
-    deltaThreshold: 10,
-    vegaThreshold: 5,
-    rhoThreshold: 0.5,
-  },
-  sweeps: { points: 5 },
-  localVol: true,
-  rules: { rateCandidateMaturity: 5, terminationRateMaturity: 2, volCandidateMaturity: 30 },
-  extraCandidates: [],
-  calibrationStrikes: {},
-  auxiliaryFraction: 0.25,
-};
+export { DEFAULT_SETTINGS };
 
 /** Validates settings, naming the first bad field. */
 export function checkSettings(raw: unknown): StudySettings {

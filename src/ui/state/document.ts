@@ -6,7 +6,7 @@
 import type { DealInput } from '../../engine/deal/types.ts';
 import type { MarketSnapshot } from '../../engine/market/types.ts';
 import type { SavedStudy, StudySettings } from '../../engine/study/types.ts';
-import { DEFAULT_RULE_SETTINGS } from '../../engine/study/rules.ts';
+import { DEFAULT_SETTINGS } from '../../engine/study/defaults.ts';
 
 /** A deal being edited: the file's shape, but any part may be incomplete while the user types. */
 export type DealDraft = DealInput;
@@ -29,36 +29,8 @@ export interface StudyDocument {
   stale: boolean;
 }
 
-/**
- * Study settings for a new document: the same values as the engine's defaults (src/engine/study/study.ts), kept
- * here as data so the UI thread does not load the engine; every one is editable on the Triage screen.
- */
-export const DEFAULT_SETTINGS: StudySettings = {
-  seed: 'factor-triage',
-  paths: 65536,
-  firstPaths: 8192,
-  batchSize: 4096,
-  maxStep: 0.25,
-  scheme: 'qe',
-  alpha: 0.05,
-  spending: 'obrienFleming',
-  threshold: { kind: 'bp', value: 10 },
-  calibration: 'fair',
-  greeks: {
-    spotBump: 0.01,
-    rateBump: 1e-4,
-    volBump: 0.01,
-    deltaThreshold: 10,
-    vegaThreshold: 5,
-    rhoThreshold: 0.5,
-  },
-  sweeps: { points: 5 },
-  localVol: true,
-  rules: DEFAULT_RULE_SETTINGS,
-  extraCandidates: [],
-  calibrationStrikes: {},
-  auxiliaryFraction: 0.25,
-};
+/** Study settings for a new document: the engine's defaults; every one is editable on the Triage screen. */
+export { DEFAULT_SETTINGS };
 
 export type DocumentAction =
   | { type: 'setDeal'; deal: DealDraft }
