@@ -8,37 +8,10 @@ import { compileDeal } from '../src/engine/deal/compileDeal.ts';
 import { checkExpression } from '../src/engine/deal/checkExpression.ts';
 import * as dealFactory from '../src/engine/deal/dealPayoffFactory.ts';
 import { batchNormals, makeBatchContext } from '../src/engine/simulation/index.ts';
-import type { VariantSpec } from '../src/engine/simulation/types.ts';
+import { benchHybridVariant } from './fixtures.ts';
 import { fmtTime, timePerCall } from './timing.ts';
 
-const variant: VariantSpec = {
-  id: 'hybrid',
-  label: 'Heston + Hull–White DOM',
-  domestic: 'DOM',
-  equities: [
-    {
-      name: 'ALDR',
-      currency: 'DOM',
-      spot: 4200,
-      divYield: 0.018,
-      dynamics: { kind: 'heston', v0: 0.04, kappa: 1.5, theta: 0.04, sigma: 0.5, rho: -0.65 },
-    },
-  ],
-  rates: {
-    DOM: {
-      curve: { currency: 'DOM', times: [1, 10], zeroRates: [0.03, 0.034] },
-      hw: { a: 0.05, sigma: 0.009 },
-    },
-  },
-  fx: [],
-  correlation: {
-    names: ['eq:ALDR', 'rate:DOM'],
-    matrix: [
-      [1, 0.2],
-      [0.2, 1],
-    ],
-  },
-};
+const variant = benchHybridVariant('hybrid');
 
 function bench(file: string, maxStep: number): void {
   const compiled = compileDeal(

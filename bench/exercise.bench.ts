@@ -21,7 +21,7 @@ import {
 } from '../src/engine/exercise/index.ts';
 import { flatCurve } from '../src/engine/market/curve.ts';
 import { hullWhiteTreeSwaption } from '../src/engine/models/hullWhiteTree.ts';
-import type { VariantSpec } from '../src/engine/simulation/types.ts';
+import { benchHybridVariant } from './fixtures.ts';
 import { fmtTime, report } from './timing.ts';
 
 /** Best wall time of `rounds` calls, in seconds (each call here takes far longer than the timer's resolution). */
@@ -100,34 +100,8 @@ export async function run(): Promise<void> {
   );
 
   // Callable equity-linked note under Heston + Hull–White (invented demo parameters).
-  const variant: VariantSpec = {
-    id: 'heston-hw',
-    label: 'Heston + Hull–White DOM',
-    domestic: 'DOM',
-    equities: [
-      {
-        name: 'ALDR',
-        currency: 'DOM',
-        spot: 4200,
-        divYield: 0.018,
-        dynamics: { kind: 'heston', v0: 0.04, kappa: 1.5, theta: 0.04, sigma: 0.5, rho: -0.65 },
-      },
-    ],
-    rates: {
-      DOM: {
-        curve: { currency: 'DOM', times: [1, 10], zeroRates: [0.03, 0.034] },
-        hw: { a: 0.05, sigma: 0.009 },
-      },
-    },
-    fx: [],
-    correlation: {
-      names: ['eq:ALDR', 'rate:DOM'],
-      matrix: [
-        [1, 0.2],
-        [0.2, 1],
-      ],
-    },
-  };
+  const variant = benchHybridVariant('heston-hw');
+
   const compiled = compileDeal(
     JSON.parse(
       readFileSync(new URL('../samples/deals/callable-equity-linked-note.json', import.meta.url), 'utf8'),
