@@ -349,6 +349,7 @@ export function prepareVariant(
     dom: rateStates.get(v.domestic)!,
     fgn: rateStates.get(x.foreign)!,
   }));
+  const domesticRate = rateStates.get(v.domestic)!;
   const slots = drivers.map((d) => layout.slotOf(d));
   const width = layout.width;
 
@@ -404,6 +405,7 @@ export function prepareVariant(
       const h = times[k + 1]! - t0;
       const sqh = Math.sqrt(h);
       const base = k * width * n;
+      const o0 = k * n;
       const o1 = (k + 1) * n;
       // 1. Correlated unit normals of the active drivers: W_i = Σ_{j≤i} L_ij Z_j.
       for (let i = 0; i < m; i++) {
@@ -500,17 +502,23 @@ export function prepareVariant(
             const A = K2 + 0.5 * K4;
             const K13 = K1 + 0.5 * K3;
             const invA2 = A > 0 ? 1 / (2 * A) : Infinity;
+            const quantoVar = vqx !== 0;
             for (let p = 0; p < n; p++) {
               const V = vv[p]!;
               const zv = W[wv + p]!;
               // Extra drift −ρ(v,X) σ σ_X √v frozen at the step's start and carried by e^{−κ(h−s)} (an
               // approximation of the conditional mean, exact as h → 0; zero for a domestic equity or ρ(v,X) = 0).
-              const m0 = theta + (V - theta) * ek - vqx * Math.sqrt(V) * ekm;
+              const m0 = quantoVar
+                ? theta + (V - theta) * ek - vqx * Math.sqrt(V) * ekm
+                : theta + (V - theta) * ek;
               const mean = m0 > 1e-300 ? m0 : 1e-300;
               const s2 = V * c1 + c2;
               const psi = s2 / (mean * mean);
               let Vn: number;
+              // The martingale correction enters as e^{k0}·scale: the logarithms in Andersen's eqs. (49)–(50) are
+              // applied as factors (√d and 1/(p + β(1−p)/(β−A))), so the step needs no log (same value, fewer calls).
               let k0 = K0;
+              let scale = 1;
               if (psi <= QE_PSI_C) {
                 // Quadratic branch, eqs. (27)–(28): V' = a (b + Z_v)².
                 const ip = 2 / psi;
@@ -520,7 +528,8 @@ export function prepareVariant(
                 Vn = a * bz * bz;
                 if (a < invA2) {
                   const d = 1 - 2 * A * a;
-                  k0 = (-A * b2 * a) / d + 0.5 * log(d) - K13 * V;
+                  k0 = (-A * b2 * a) / d - K13 * V;
+                  scale = Math.sqrt(d);
                 }
               } else {
                 // Exponential branch, eqs. (29)–(30): P(V' = 0) = p, else exponential with rate β.
@@ -528,7 +537,10 @@ export function prepareVariant(
                 const beta = (1 - pp) / mean;
                 const u = normCdf(zv);
                 Vn = u <= pp ? 0 : log((1 - pp) / (1 - u)) / beta;
-                if (A < beta) k0 = -log(pp + (beta * (1 - pp)) / (beta - A)) - K13 * V;
+                if (A < beta) {
+                  k0 = -K13 * V;
+                  scale = 1 / (pp + (beta * (1 - pp)) / (beta - A));
+                }
               }
               const iv = h * (g1 * V + g2 * Vn);
               const siv = Math.sqrt(iv);
@@ -537,9 +549,9 @@ export function prepareVariant(
               // Quanto drift −ρ(S,X) σ_X ∫√v dt ≈ −ρ σ_X √(h ∫v) (zero for a domestic equity).
               // The variance's extra drift needs no term here: K0 is replaced by the martingale correction k0,
               // computed from the QE law of V' with the shifted mean, so E[S'/S] stays exact.
-              const y = ls[p]! + sr[p]! - q + k0 + K1 * V + K2 * Vn + siv * R - qx * sqh * siv;
-              ls[p] = y;
-              out[o1 + p] = exp(y);
+              // The state is S itself, not ln S, so the correction's factor multiplies in: S' = S e^{y} scale.
+              const y = sr[p]! - q + k0 + K1 * V + K2 * Vn + siv * R - qx * sqh * siv;
+              out[o1 + p] = out[o0 + p]! * exp(y) * scale;
               vv[p] = Vn;
               vOut[o1 + p] = Vn;
             }
@@ -590,12 +602,19 @@ export function prepareVariant(
           out[o1 + p] = exp(y);
         }
       }
-      // 5. Domestic numeraire: 1/B(t_{k+1}) = exp(−∫_0^{t_{k+1}} r).
+      // 5. Domestic numeraire: 1/B(t_{k+1}) = exp(−∫_0^{t_{k+1}} r); with a deterministic rate every path has the
+      // same sum, so the exp is taken once (the same value as per path).
       const rd = stepR.get(v.domestic)!;
-      for (let p = 0; p < n; p++) {
-        const c = cumR[p]! + rd[p]!;
-        cumR[p] = c;
-        discount[o1 + p] = exp(-c);
+      if (!domesticRate.hw) {
+        const c = cumR[0]! + rd[0]!;
+        cumR.fill(c);
+        discount.fill(exp(-c), o1, o1 + n);
+      } else {
+        for (let p = 0; p < n; p++) {
+          const c = cumR[p]! + rd[p]!;
+          cumR[p] = c;
+          discount[o1 + p] = exp(-c);
+        }
       }
     }
 

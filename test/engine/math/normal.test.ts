@@ -5,6 +5,7 @@ import {
   normCdfUpper,
   normInv,
   normInvFast,
+  normInvFastInPlace,
   normPdf,
 } from '../../../src/engine/math/normal.ts';
 import { integrateAdaptive } from '../../../src/engine/math/quadrature.ts';
@@ -179,5 +180,28 @@ describe('normInvFast', () => {
     }
     // Φ⁻¹(0.975) = 1.959963984540054 (common practice; digits from memory, as for normInv above).
     expectRel('z(0.975)', normInvFast(0.975), 1.959963984540054, 4 * EPS);
+  });
+});
+
+describe('normInvFastInPlace', () => {
+  it('gives normInvFast bit for bit, entry by entry, across both branches and their boundary', () => {
+    // Both sides of the switch |p − ½| = 0.425, the far tails, and a dense random-looking sweep.
+    const ps: number[] = [0.075, 0.925, 0.07499999999999999, 0.9250000000000002, 1e-300, 1 - 1e-16, 0.5];
+    for (let i = 1; i < 5000; i++) ps.push((i * 0.6180339887498949) % 1 || 0.5);
+    const a = Float64Array.from([0.123, ...ps, 0.456]);
+    normInvFastInPlace(a, 1, 1 + ps.length);
+    expect(a[0]).toBe(0.123); // entries outside [from, to) untouched
+    expect(a[a.length - 1]).toBe(0.456);
+    ps.forEach((p, i) => expect(Object.is(a[i + 1], normInvFast(p)), `p = ${p}`).toBe(true));
+  });
+
+  it('handles a call longer than any earlier one and an empty range', () => {
+    const long = new Float64Array(20_000).map((_, i) => (i + 0.5) / 20_000);
+    const want = Array.from(long, (p) => normInvFast(p));
+    normInvFastInPlace(long, 0, long.length);
+    expect(Array.from(long)).toEqual(want);
+    const empty = Float64Array.of(0.3);
+    normInvFastInPlace(empty, 1, 1);
+    expect(empty[0]).toBe(0.3);
   });
 });
