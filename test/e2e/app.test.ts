@@ -199,6 +199,8 @@ describe('browser build', () => {
     const app = await AppPage.open(browser, url);
     try {
       await app.screen('market');
+      // The demo study opens asynchronously: wait for the market itself, not the "opening" notice.
+      await app.page.waitForSelector('[data-tab=equities]');
       await app.shot(shots, 'market');
       await app.page.click('[data-tab=equities]');
       await app.page.waitForSelector('.grid-table');
