@@ -128,32 +128,7 @@ export function normCdfUpper(x: number): number {
  */
 export function normInvFast(p: number): number {
   const q = p - 0.5;
-  if (Math.abs(q) <= 0.425) {
-    const r = 0.180625 - q * q;
-    return (
-      (q *
-        (((((((2509.0809287301226727 * r + 33430.575583588128105) * r + 67265.770927008700853) * r +
-          45921.953931549871457) *
-          r +
-          13731.693765509461125) *
-          r +
-          1971.5909503065514427) *
-          r +
-          133.14166789178437745) *
-          r +
-          3.387132872796366608)) /
-      (((((((5226.495278852854561 * r + 28729.085735721942674) * r + 39307.89580009271061) * r +
-        21213.794301586595867) *
-        r +
-        5394.1960214247511077) *
-        r +
-        687.1870074920579083) *
-        r +
-        42.313330701600911252) *
-        r +
-        1)
-    );
-  }
+  if (Math.abs(q) <= 0.425) return ppndCentral(q);
   let r = q < 0 ? p : 1 - p;
   r = Math.sqrt(-log(r));
   let val: number;
@@ -207,7 +182,7 @@ export function normInvFast(p: number): number {
   return q < 0 ? -val : val;
 }
 
-/** Central-region rational of AS 241 (|q| ≤ 0.425), the same expression as in {@link normInvFast}. */
+/** Central-region rational of AS 241 (Wichura 1988, PPND16), q = p − ½ with |q| ≤ 0.425. */
 function ppndCentral(q: number): number {
   const r = 0.180625 - q * q;
   return (
