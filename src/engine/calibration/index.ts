@@ -1,4 +1,7 @@
-/** Calibration of every ladder variant: one optimiser wrapper, one file per model, fit and stability reports. */
+/**
+ * Calibration layer: one optimiser wrapper, one file per model, fit and stability reports. The ladder itself is
+ * assembled in one place, the study's `calibrateLadder` (src/engine/study/ladderCalibration.ts).
+ */
 export * from './levenbergMarquardt.ts';
 export * from './blackFormulas.ts';
 export * from './cosPricer.ts';
@@ -15,5 +18,4 @@ export * from './sviSurface.ts';
 export * from './localVolCalibration.ts';
 export * from './fxCalibration.ts';
 export * from './chooseCalibrationSet.ts';
-export * from './ladderCalibration.ts';
 export * from './calibrationStability.ts';

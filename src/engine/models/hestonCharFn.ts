@@ -126,9 +126,15 @@ export function hestonExponentGrid(
     const gr = (gnr * pr + gni * pi) * ipden;
     const gi = (gni * pr - gnr * pi) * ipden;
     // e = exp(−dT)
-    const ex = exp(-dr * T);
-    const er = ex * cos(di * T);
-    const ei = -ex * sin(di * T);
+    // e^{−dT}: below 2⁻⁶⁰ it no longer changes 1 − e or 1 − g e in double precision, so it is skipped.
+    const drT = dr * T;
+    let er = 0;
+    let ei = 0;
+    if (drT < 41.6) {
+      const ex = exp(-drT);
+      er = ex * cos(di * T);
+      ei = -ex * sin(di * T);
+    }
     // 1 − e, 1 − g e
     const ome_r = 1 - er;
     const ome_i = -ei;
@@ -169,6 +175,89 @@ export function hestonExponentGrid(
       dRe[j] = Dr;
       dIm[j] = Di;
     }
+  }
+}
+
+/**
+ * The exponent ln φ(z) = C + D v₀ on the line z = u − i·`shift` for real u (the Lewis contour, shift = ½), inlined
+ * complex arithmetic of the same little-trap form as {@link hestonCharFn} (Albrecher et al. 2007), term for term:
+ * iz = (shift, u), ξ = κ − ρσ·iz, q = iz + z², d = √(ξ² + σ²q) principal, m = −q/(ξ + d), g₂ = mσ²/(ξ + d),
+ * D = m(1 − e^{−dT})/(1 − g₂e^{−dT}), C = κθT m − (2κθ/σ²) ln(1 + w), w = g₂(1 − e^{−dT})/(1 − g₂).
+ * Writes Re and Im of the exponent into `eRe`, `eIm`. Tests check it against the `Complex` version.
+ */
+export function hestonExponentShiftedGrid(
+  params: HestonParams,
+  T: number,
+  u: ArrayLike<number>,
+  shift: number,
+  eRe: Float64Array,
+  eIm: Float64Array,
+): void {
+  const { v0, kappa, theta, sigma, rho } = params;
+  const s2 = sigma * sigma;
+  const kt = kappa * theta;
+  const twoKtOverS2 = (2 * kt) / s2;
+  const xr = kappa - rho * sigma * shift;
+  for (let j = 0; j < u.length; j++) {
+    const uj = u[j]!;
+    // ξ = κ − ρσ(shift + iu)
+    const xiI = -rho * sigma * uj;
+    // q = iz + z² = (shift + u² − shift², u − 2u·shift)
+    const qr = shift + uj * uj - shift * shift;
+    const qi = uj - 2 * uj * shift;
+    const d2r = xr * xr - xiI * xiI + s2 * qr;
+    const d2i = 2 * xr * xiI + s2 * qi;
+    const mod = Math.sqrt(d2r * d2r + d2i * d2i);
+    const dr = Math.sqrt(Math.max(0, 0.5 * (mod + d2r)));
+    let di = Math.sqrt(Math.max(0, 0.5 * (mod - d2r)));
+    if (d2i < 0) di = -di;
+    const pr = xr + dr;
+    const pi = xiI + di;
+    const ipden = 1 / (pr * pr + pi * pi);
+    const mr = -(qr * pr + qi * pi) * ipden;
+    const mi = -(qi * pr - qr * pi) * ipden;
+    const gnr = mr * s2;
+    const gni = mi * s2;
+    const gr = (gnr * pr + gni * pi) * ipden;
+    const gi = (gni * pr - gnr * pi) * ipden;
+    // e^{−dT}: below 2⁻⁶⁰ it no longer changes 1 − e or 1 − g e in double precision, so it is skipped.
+    const drT = dr * T;
+    let er = 0;
+    let ei = 0;
+    if (drT < 41.6) {
+      const ex = exp(-drT);
+      er = ex * cos(di * T);
+      ei = -ex * sin(di * T);
+    }
+    const omeR = 1 - er;
+    const omeI = -ei;
+    const omgeR = 1 - (gr * er - gi * ei);
+    const omgeI = -(gr * ei + gi * er);
+    const nr = mr * omeR - mi * omeI;
+    const ni = mr * omeI + mi * omeR;
+    const iden = 1 / (omgeR * omgeR + omgeI * omgeI);
+    const Dr = (nr * omgeR + ni * omgeI) * iden;
+    const Di = (ni * omgeR - nr * omgeI) * iden;
+    const wnr = gr * omeR - gi * omeI;
+    const wni = gr * omeI + gi * omeR;
+    const omgR = 1 - gr;
+    const omgI = -gi;
+    const iwden = 1 / (omgR * omgR + omgI * omgI);
+    const wr = (wnr * omgR + wni * omgI) * iwden;
+    const wi = (wni * omgR - wnr * omgI) * iwden;
+    let Lr: number;
+    let Li: number;
+    if (wr * wr + wi * wi < 1e-10) {
+      const w2r = wr * wr - wi * wi;
+      const w2i = 2 * wr * wi;
+      Lr = wr - 0.5 * w2r + (w2r * wr - w2i * wi) / 3;
+      Li = wi - 0.5 * w2i + (w2r * wi + w2i * wr) / 3;
+    } else {
+      Lr = 0.5 * log((1 + wr) * (1 + wr) + wi * wi);
+      Li = atan2(wi, 1 + wr);
+    }
+    eRe[j] = kt * T * mr - twoKtOverS2 * Lr + v0 * Dr;
+    eIm[j] = kt * T * mi - twoKtOverS2 * Li + v0 * Di;
   }
 }
 

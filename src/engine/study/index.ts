@@ -57,8 +57,19 @@ export {
 export { shapley, shapleyWeights } from './shapley.ts';
 export {
   calibrateLadder,
+  calibrationExpiries,
+  fitHullWhite,
+  ladderFactors,
   maskFactors,
-  type LadderRequest,
+  snapshotLadderBasis,
+  studyLadderRequest,
+  variantId,
+  type CapletQuote,
   type CalibratedLadder,
+  type EquityFitReport,
+  type LadderBasis,
+  type LadderFitReports,
+  type LadderRequest,
+  type LadderSettings,
 } from './ladderCalibration.ts';
 export { studyInProcessExecutor } from './studyExecutor.ts';

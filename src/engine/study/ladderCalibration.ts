@@ -14,6 +14,10 @@
  *   curve; caplet prices in closed form (Brigo & Mercurio 2006, eq. 3.41).
  * - Naive mode: the deterministic-rate equity fit is kept and the rate factor is added without refitting
  *   (labelled: it measures miscalibration as well as the factor).
+ *
+ * This is the only assembly of the ladder: the study simulates it and the `calibrate` command prints it. The request
+ * builders below (`ladderFactors`, `studyLadderRequest`, `snapshotLadderBasis`) give the request a study of a deal
+ * would make, or one from a snapshot alone; the fit reports behind the variants come back in `reports`.
  */
 import { fail } from '../errors.ts';
 import type { DealAnalysis } from '../deal/types.ts';
@@ -31,17 +35,21 @@ import { makeCurve } from '../market/curve.ts';
 import { isPsd, nearestCorrelation } from '../math/linalg.ts';
 import { bsPrice, black76 } from '../models/blackScholes.ts';
 import { bachelierPrice } from '../models/bachelier.ts';
-import { calibrateHeston, hestonModelPrices } from '../calibration/hestonCalibration.ts';
+import {
+  calibrateHeston,
+  hestonModelPrices,
+  type HestonCalibration,
+} from '../calibration/hestonCalibration.ts';
 import {
   bsForwardVols,
   bsHullWhiteRefit,
   bsTargetsFromGrid,
 } from '../calibration/blackScholesCalibration.ts';
-import { calibrateHullWhite } from '../calibration/hullWhiteCalibration.ts';
-import { refitHestonUnderRates } from '../calibration/hestonRefit.ts';
+import { calibrateHullWhite, type HullWhiteCalibration } from '../calibration/hullWhiteCalibration.ts';
+import { refitHestonUnderRates, type HestonRefit } from '../calibration/hestonRefit.ts';
 import { gridQuotes, type VolQuote } from '../calibration/volGrid.ts';
-import type { CalibrationMode, FitRow, LadderVariant } from './types.ts';
-import { FACTOR_IDS, type FactorId } from './rules.ts';
+import type { CalibrationMode, FitRow, LadderVariant, StudySettings } from './types.ts';
+import { applyRules, candidateFactors, requiredFactors, FACTOR_IDS, type FactorId } from './rules.ts';
 import { log } from '../math/detMath.ts';
 
 const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
@@ -56,10 +64,16 @@ export interface CapletQuote {
   vol: number;
 }
 
+/**
+ * What the ladder needs to know of a deal: its payment currency, every currency involved, its equities and its last
+ * date (years). A deal analysis is one; `snapshotLadderBasis` builds one from a snapshot alone.
+ */
+export type LadderBasis = Pick<DealAnalysis, 'currency' | 'currencies' | 'equities' | 'lastTime'>;
+
 /** What the ladder is calibrated from. */
 export interface LadderRequest {
   snapshot: MarketSnapshot;
-  analysis: DealAnalysis;
+  analysis: LadderBasis;
   /** Candidate factors in bit order (bit i of a mask = candidates[i]). */
   candidates: FactorId[];
   /** Factors present in every variant. */
@@ -76,6 +90,32 @@ export interface LadderRequest {
   bsStrikes?: Record<string, number>;
   /** Correct the H1-HW Heston refit by Monte Carlo of the full model (own seed, never the study's paths). */
   hestonMcRefit?: { paths: number; seed: string; maxStep: number };
+}
+
+/** How one equity was fitted inside one variant. */
+export interface EquityFitReport {
+  /**
+   * bs: forward vols; bs-hw: forward vols refitted under Hull–White; heston: COS fit under deterministic rates (also
+   * the naive variants' equity under stochastic rates); h1-hw: refit by the H1-HW characteristic function;
+   * h1-hw+mc: that refit corrected by Monte Carlo of the full model.
+   */
+  model: 'bs' | 'bs-hw' | 'heston' | 'h1-hw' | 'h1-hw+mc';
+  /** The Heston fit (heston, h1-hw). */
+  heston?: HestonCalibration;
+  /** The Monte Carlo-corrected refit (h1-hw+mc). */
+  refit?: HestonRefit;
+  /** Converged and within its tolerance. */
+  ok: boolean;
+}
+
+/** The fit reports behind the variants (read by the calibrate command and the stability report; not saved in studies). */
+export interface LadderFitReports {
+  /** Hull–White fit per currency with a stochastic rate somewhere in the ladder. */
+  hullWhite: Record<string, HullWhiteCalibration>;
+  /** Heston fit per equity under deterministic rates (only when some variant has it). */
+  heston: Record<string, HestonCalibration>;
+  /** Per variant id: each equity's fit, and whether every fit of the variant (Hull–White included) is accepted. */
+  variants: Record<string, { equities: Record<string, EquityFitReport>; ok: boolean }>;
 }
 
 /** The calibrated ladder. */
@@ -95,6 +135,7 @@ export interface CalibratedLadder {
   >;
   /** Heston parameters per equity under deterministic rates (for warm starts and stability). */
   heston: Record<string, HestonParams>;
+  reports: LadderFitReports;
   warnings: string[];
   seconds: number;
 }
@@ -198,7 +239,14 @@ function fitHeston(
   rates: { hw: HullWhiteParams; rho: number } | null,
   warm: HestonParams | undefined,
   mcRefit?: { paths: number; seed: string; maxStep: number },
-): { params: HestonParams; rows: FitRow[]; seconds: number; feller: number; warnings: string[] } {
+): {
+  params: HestonParams;
+  rows: FitRow[];
+  seconds: number;
+  feller: number;
+  warnings: string[];
+  report: EquityFitReport;
+} {
   const curve = makeCurve(curveSpec, `market.curves.${eq.currency}`);
   const keep = new Set(expiries);
   const quotes: VolQuote[] = gridQuotes(eq, curve, `market.equities.${name}`).filter((q) =>
@@ -230,7 +278,15 @@ function fitHeston(
     if (r.status === 'not-met')
       warnings.push(`Monte Carlo-corrected Heston refit of ${name} stopped without meeting its tolerance`);
     const ratio = (2 * r.params.kappa * r.params.theta) / (r.params.sigma * r.params.sigma);
-    return { params: r.params, rows, seconds: r.seconds, feller: ratio, warnings };
+    const ok = a.fit.converged && r.status !== 'not-met';
+    return {
+      params: r.params,
+      rows,
+      seconds: r.seconds,
+      feller: ratio,
+      warnings,
+      report: { model: 'h1-hw+mc', refit: r, ok },
+    };
   }
   const res = calibrateHeston({
     name,
@@ -252,7 +308,14 @@ function fitHeston(
     warnings.push(
       `Heston fit of ${name} did not meet its tolerance (RMSE ${res.rmseVolPoints.toFixed(3)} vol points)`,
     );
-  return { params: res.params, rows, seconds: res.seconds, feller: res.feller.ratio, warnings };
+  return {
+    params: res.params,
+    rows,
+    seconds: res.seconds,
+    feller: res.feller.ratio,
+    warnings,
+    report: { model: rates ? 'h1-hw' : 'heston', heston: res, ok: res.ok },
+  };
 }
 
 /** Hull–White a, σ fitted to the rate vols of one currency whose quotes end by the deal's last date (at least two). */
@@ -268,6 +331,8 @@ export function fitHullWhite(
   warnings: string[];
   /** The caplets fitted (for the Monte Carlo repricing on the study's paths); empty for swaptions. */
   caplets: CapletQuote[];
+  /** The calibration layer's report of the fit. */
+  report: HullWhiteCalibration;
 } {
   const spec = snapshot.rateVols?.[ccy];
   if (!spec)
@@ -313,7 +378,15 @@ export function fitHullWhite(
               : r.tenor * black76({ type: 'call', F, K: r.strike, T: T1, df: P2, vol: r.marketVol });
           return { currency: ccy, expiry: T1, tenor: r.tenor, strike: r.strike, market, vol: r.marketVol };
         });
-  return { params: cal.params, rmseBp: cal.rmseVol, rows, seconds: cal.seconds, warnings, caplets };
+  return {
+    params: cal.params,
+    rmseBp: cal.rmseVol,
+    rows,
+    seconds: cal.seconds,
+    warnings,
+    caplets,
+    report: cal,
+  };
 }
 
 /** Builds and calibrates every variant of the ladder (2^k masks). */
@@ -369,8 +442,11 @@ export function calibrateLadder(req: LadderRequest): CalibratedLadder {
   if (allFactors.includes('domesticRate')) hwNeeded.add(dom);
   if (allFactors.includes('foreignRate')) foreign.forEach((c) => hwNeeded.add(c));
   const hullWhite: CalibratedLadder['hullWhite'] = {};
+  const reports: LadderFitReports = { hullWhite: {}, heston: {}, variants: {} };
   for (const c of hwNeeded) {
-    hullWhite[c] = fitHullWhite(s, c, a.lastTime);
+    const { report, ...fitted } = fitHullWhite(s, c, a.lastTime);
+    hullWhite[c] = fitted;
+    reports.hullWhite[c] = report;
     warnings.push(...hullWhite[c]!.warnings);
   }
 
@@ -398,6 +474,7 @@ export function calibrateLadder(req: LadderRequest): CalibratedLadder {
     const fit: FitRow[] = [];
     const vWarnings: string[] = [];
     const feller: Record<string, number> = {};
+    const eqReports: Record<string, EquityFitReport> = {};
     let cf: 'exact' | 'approximate' | 'none' = 'exact';
     const eqSpecs: EquitySpec[] = equities.map((e) => {
       const expiries = calibrationExpiries(e.quote.vols.expiries, a.lastTime);
@@ -420,6 +497,8 @@ export function calibrateLadder(req: LadderRequest): CalibratedLadder {
         );
         if (r.fresh) seconds += r.value.seconds;
         if (!refit) hestonDet[e.marketName] = r.value.params;
+        if (!refit && r.value.report.heston) reports.heston[e.marketName] = r.value.report.heston;
+        eqReports[e.marketName] = r.value.report;
         if (refit) cf = 'approximate';
         dynamics = { kind: 'heston', ...r.value.params };
         fit.push(...r.value.rows);
@@ -432,6 +511,7 @@ export function calibrateLadder(req: LadderRequest): CalibratedLadder {
         if (r.fresh) seconds += r.value.seconds;
         dynamics = r.value.dynamics;
         fit.push(...r.value.rows);
+        eqReports[e.marketName] = { model: refit ? 'bs-hw' : 'bs', ok: true };
       }
       return {
         name: e.marketName,
@@ -504,6 +584,14 @@ export function calibrateLadder(req: LadderRequest): CalibratedLadder {
       }
     }
     const id = variantId(factors, foreign, dom) + (req.mode === 'naive' ? '~naive' : '');
+    reports.variants[id] = {
+      equities: eqReports,
+      ok:
+        Object.values(eqReports).every((r) => r.ok) &&
+        Object.keys(hullWhite)
+          .filter(stochRate)
+          .every((c) => reports.hullWhite[c]!.ok),
+    };
     const spec: VariantSpec = {
       id,
       label: variantLabel(factors, foreign, dom),
@@ -540,10 +628,117 @@ export function calibrateLadder(req: LadderRequest): CalibratedLadder {
       },
     });
   }
-  return { variants, hullWhite, heston: hestonDet, warnings, seconds: (now() - t0) / 1000 };
+  return { variants, hullWhite, heston: hestonDet, reports, warnings, seconds: (now() - t0) / 1000 };
 }
 
 /** Heston model price of one vanilla (for closed-form checks of the study). */
 export function hestonVanilla(p: HestonParams, q: VolQuote): number {
   return hestonModelPrices(p, [q])[0]!;
+}
+
+/**
+ * Candidate and required factors of a deal as a study chooses them: the rules' candidates and required factors, plus
+ * each extra candidate the rules call not needed (when the deal can carry it), in the order stochVol, domesticRate,
+ * foreignRate.
+ */
+export function ladderFactors(
+  analysis: DealAnalysis,
+  settings: Pick<StudySettings, 'rules' | 'extraCandidates'>,
+): { candidates: FactorId[]; required: FactorId[] } {
+  const rules = applyRules(analysis, settings.rules);
+  const candidates = candidateFactors(rules);
+  const required = requiredFactors(rules);
+  for (const f of settings.extraCandidates) {
+    const st = rules.factors.find((x) => x.factor === f)!;
+    if (st.status === 'notNeeded' && !candidates.includes(f)) {
+      if (f === 'foreignRate' && analysis.currencies.length < 2) continue;
+      if (f === 'stochVol' && analysis.equities.length === 0) continue;
+      candidates.push(f);
+    }
+  }
+  candidates.sort((x, y) => FACTOR_IDS.indexOf(x) - FACTOR_IDS.indexOf(y));
+  return { candidates, required };
+}
+
+/** The study settings that decide how the ladder is calibrated. */
+export type LadderSettings = Pick<
+  StudySettings,
+  | 'seed'
+  | 'paths'
+  | 'batchSize'
+  | 'auxiliaryFraction'
+  | 'maxStep'
+  | 'calibration'
+  | 'scheme'
+  | 'calibrationStrikes'
+  | 'hestonRefit'
+>;
+
+/**
+ * The ladder request a study with these settings makes on `snapshot`: calibration mode, Heston scheme, the
+ * Black–Scholes target strikes and, for the Monte Carlo-corrected refit, its paths (the study's auxiliary path count,
+ * at least 16384), its own seed (`SEED/heston-refit`) and its largest step (at most half a month).
+ */
+export function studyLadderRequest(input: {
+  snapshot: MarketSnapshot;
+  analysis: LadderBasis;
+  candidates: FactorId[];
+  required: FactorId[];
+  settings: LadderSettings;
+}): LadderRequest {
+  const S = input.settings;
+  const aux = Math.max(S.batchSize, Math.round((S.paths * S.auxiliaryFraction) / S.batchSize) * S.batchSize);
+  return {
+    snapshot: input.snapshot,
+    analysis: input.analysis,
+    candidates: input.candidates,
+    required: input.required,
+    mode: S.calibration,
+    scheme: S.scheme,
+    bsStrikes: S.calibrationStrikes,
+    ...(S.hestonRefit === 'monteCarlo'
+      ? {
+          // The full-model check needs fine steps: a one-step QE check at a short expiry is biased and the
+          // correction would chase that bias (half a month keeps it well inside the tolerance).
+          hestonMcRefit: {
+            paths: Math.max(aux, 16384),
+            seed: `${S.seed}/heston-refit`,
+            maxStep: Math.min(S.maxStep, 1 / 24),
+          },
+        }
+      : {}),
+  };
+}
+
+/**
+ * The ladder basis of a snapshot alone (no deal): the named equities (default every equity of the snapshot), paid in
+ * the snapshot's domestic currency; the currencies are the domestic one, the equities' and any in `currencies`; the
+ * last date is the latest quoted equity expiry or rate-quote end (expiry + tenor) of those currencies, so every
+ * quoted expiry and rate quote is a calibration instrument.
+ */
+export function snapshotLadderBasis(
+  snapshot: MarketSnapshot,
+  options: { equities?: string[]; currencies?: string[] } = {},
+): LadderBasis {
+  const names = options.equities ?? Object.keys(snapshot.equities);
+  const dom = snapshot.domestic;
+  const equities = names.map((n) => {
+    const q = snapshot.equities[n];
+    if (!q)
+      fail(
+        'E_UNKNOWN_UNDERLYING',
+        'calibration.equities',
+        `must name equities of the market (it has ${Object.keys(snapshot.equities).join(', ') || 'none'})`,
+        n,
+        'correct the name or add the equity to the market snapshot',
+      );
+    return { id: n, marketName: n, currency: q.currency };
+  });
+  const currencies = [...new Set([dom, ...equities.map((e) => e.currency), ...(options.currencies ?? [])])];
+  let lastTime = 0;
+  for (const e of equities)
+    for (const T of snapshot.equities[e.marketName]!.vols.expiries) lastTime = Math.max(lastTime, T);
+  for (const c of currencies)
+    for (const q of snapshot.rateVols?.[c]?.quotes ?? []) lastTime = Math.max(lastTime, q.expiry + q.tenor);
+  return { currency: dom, currencies, equities, lastTime };
 }

@@ -1,5 +1,9 @@
 import { describe, expect, it } from 'vitest';
-import { calibrationStability } from '../../../src/engine/calibration/calibrationStability.ts';
+import {
+  calibrationStability,
+  stabilityOfFits,
+} from '../../../src/engine/calibration/calibrationStability.ts';
+import { calibrateLadder, snapshotLadderBasis } from '../../../src/engine/study/ladderCalibration.ts';
 import { FO_HESTON, syntheticSnapshot } from './syntheticMarket.ts';
 
 describe('parameter stability over a series of snapshots', () => {
@@ -36,5 +40,51 @@ describe('parameter stability over a series of snapshots', () => {
 
   it('needs at least two snapshots', () => {
     expect(() => calibrationStability(snaps.slice(0, 1), { equities: ['EQD'] })).toThrow(/at least 2 dates/);
+  });
+
+  it('follows the ladder a study of each date calibrates, parameter for parameter', () => {
+    const ladder = {
+      analysis: snapshotLadderBasis(snaps[0]!, { equities: ['EQD'] }),
+      candidates: ['stochVol' as const, 'domesticRate' as const],
+      required: [],
+      mode: 'fair' as const,
+      scheme: 'qe' as const,
+    };
+    const viaLadder = calibrationStability(snaps, { ladder });
+    snaps.forEach((s, i) => {
+      const l = calibrateLadder({ ...ladder, snapshot: s });
+      const path = (m: string, k: string) =>
+        viaLadder.paths.find((p) => p.model === m && p.parameter === k)!.values[i];
+      for (const k of ['v0', 'kappa', 'theta', 'sigma', 'rho'] as const)
+        expect(path('heston:EQD', k), `${s.date} ${k}`).toBe(l.heston.EQD![k]);
+      expect(path('hull-white:DOM', 'a')).toBe(l.hullWhite.DOM!.params.a);
+      expect(path('hull-white:DOM', 'sigma')).toBe(l.hullWhite.DOM!.params.sigma);
+    });
+  });
+
+  it('orders the dates and keeps a parameter missing on a date out of that date', () => {
+    const fit = (v: number) => ({
+      model: 'm',
+      parameters: [{ name: 'x', value: v, standardError: 0.1 }],
+      conditionNumber: 2,
+      fitRmse: 0.01,
+    });
+    const r = stabilityOfFits([
+      { date: '2030-01-03', fits: [fit(2)] },
+      { date: '2030-01-02', fits: [fit(1)] },
+      { date: '2030-01-04', fits: [] },
+    ]);
+    expect(r.dates).toEqual(['2030-01-02', '2030-01-03', '2030-01-04']);
+    expect(r.paths[0]!.dates).toEqual(['2030-01-02', '2030-01-03']);
+    expect(r.paths[0]!.changes).toEqual([1]);
+    // Sample sd of {1, 2} = 1/√2, mean 1.5.
+    expect(r.paths[0]!.coefficientOfVariation).toBeCloseTo(Math.SQRT1_2 / 1.5, 14);
+  });
+
+  it('names the date and the field when a snapshot of the series lacks an equity', () => {
+    const broken = { ...snaps[1]!, equities: { EQF: snaps[1]!.equities.EQF! } };
+    expect(() => calibrationStability([snaps[0]!, broken], { equities: ['EQD'] })).toThrow(
+      /2030-01-03: equities\.EQD must be in every snapshot/,
+    );
   });
 });

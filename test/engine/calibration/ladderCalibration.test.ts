@@ -1,9 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import {
   calibrateLadder,
-  calibrateVariant,
-  factorSubsets,
-} from '../../../src/engine/calibration/ladderCalibration.ts';
+  fitHullWhite,
+  snapshotLadderBasis,
+  studyLadderRequest,
+  type LadderRequest,
+} from '../../../src/engine/study/ladderCalibration.ts';
+import { DEFAULT_SETTINGS } from '../../../src/engine/study/defaults.ts';
 import { chooseCalibrationSet } from '../../../src/engine/calibration/chooseCalibrationSet.ts';
 import { calibrateFx } from '../../../src/engine/calibration/fxCalibration.ts';
 import { makeCurve } from '../../../src/engine/market/index.ts';
@@ -65,55 +68,88 @@ describe('calibration set', () => {
   });
 });
 
-describe('ladder calibration', () => {
-  const L = calibrateLadder(snap, {
-    equities: ['EQD', 'EQF'],
-    factors: { stochVol: true, domRate: true, forRate: true },
+// The ladder of the calibrate command and of the study is one assembly (src/engine/study/ladderCalibration.ts);
+// these checks run it on a snapshot alone, the basis the calibrate command uses without a deal.
+describe('ladder calibration of a snapshot alone', () => {
+  const basis = snapshotLadderBasis(snap, { equities: ['EQD', 'EQF'] });
+  const req: LadderRequest = {
+    snapshot: snap,
+    analysis: basis,
+    candidates: ['stochVol', 'domesticRate', 'foreignRate'],
+    required: [],
+    mode: 'fair',
+    scheme: 'qe',
+  };
+  const L = calibrateLadder(req);
+  const variant = (id: string) => L.variants.find((v) => v.id === id)!;
+
+  it('takes every equity, its currency and every quote of the snapshot as the basis', () => {
+    expect(basis.currency).toBe('DOM');
+    expect(basis.currencies).toEqual(['DOM', 'ASH']);
+    expect(basis.equities.map((e) => `${e.marketName}:${e.currency}`)).toEqual(['EQD:DOM', 'EQF:ASH']);
+    // Last caplet fixes at 10y and pays at 11y (1y tenor); the last equity expiry is 5y.
+    const ends = snap.rateVols!.DOM!.quotes.map((q) => q.expiry + q.tenor);
+    expect(basis.lastTime).toBe(Math.max(...ends));
+    expect(() => snapshotLadderBasis(snap, { equities: ['NOPE'] })).toThrow(
+      /calibration\.equities must name equities of the market.*correct the name/,
+    );
   });
 
   it('builds every subset of the candidate factors, base first', () => {
-    expect(factorSubsets({ stochVol: true, domRate: true, forRate: false }).length).toBe(4);
     expect(L.variants.map((v) => v.id)).toEqual([
       'bs',
       'heston',
-      'bs+hw:dom',
-      'heston+hw:dom',
-      'bs+hw:for',
-      'heston+hw:for',
-      'bs+hw:dom+hw:for',
-      'heston+hw:dom+hw:for',
+      'bs+hw(DOM)',
+      'heston+hw(DOM)',
+      'bs+hw(ASH)',
+      'heston+hw(ASH)',
+      'bs+hw(DOM)+hw(ASH)',
+      'heston+hw(DOM)+hw(ASH)',
     ]);
+    expect(L.variants.map((v) => v.mask)).toEqual([0, 1, 2, 3, 4, 5, 6, 7]);
   });
 
   it('labels the characteristic function of each variant: exact, or approximate for Heston under rates', () => {
-    const cf = Object.fromEntries(L.variants.map((v) => [v.id, v.cost.characteristicFunction]));
+    const cf = Object.fromEntries(L.variants.map((v) => [v.id, v.calibration.characteristicFunction]));
     expect(cf).toMatchObject({
       bs: 'exact',
       heston: 'exact',
-      'bs+hw:dom': 'exact',
-      'heston+hw:dom': 'approximate',
-      'heston+hw:dom+hw:for': 'approximate',
+      'bs+hw(DOM)': 'exact',
+      'heston+hw(DOM)': 'approximate',
+      'heston+hw(DOM)+hw(ASH)': 'approximate',
     });
-    for (const v of L.variants) expect(v.cost.seconds).toBeGreaterThanOrEqual(0);
+    for (const v of L.variants) expect(v.calibration.seconds).toBeGreaterThanOrEqual(0);
+    expect(L.reports.variants['heston+hw(DOM)']!.equities).toMatchObject({
+      EQD: { model: 'h1-hw' },
+      EQF: { model: 'heston' },
+    });
   });
 
+  // Hull, Options, Futures and Other Derivatives, short-rate chapter problem (a = 0.08, σ = 0.01; published.md,
+  // from memory): caplet vols generated from these parameters give them back.
   it('fits Hull–White per currency and recovers the generating parameters', () => {
     expect(Math.abs(L.hullWhite.DOM!.params.a - HULL_HW.a)).toBeLessThan(1e-5);
     expect(Math.abs((L.hullWhite.ASH!.params.sigma as number) - 0.007)).toBeLessThan(1e-7);
+    expect(L.reports.hullWhite.DOM!.params).toEqual(L.hullWhite.DOM!.params);
   });
 
+  // Fang & Oosterlee (2008) Heston test parameters (published.md, from memory) generate the EQD grid.
   it('gives the deterministic-rate Heston variant the generating parameters back', () => {
-    const h = L.variants.find((v) => v.id === 'heston')!.equities.find((e) => e.name === 'EQD')!.dynamics;
+    const h = variant('heston').spec.equities.find((e) => e.name === 'EQD')!.dynamics;
     expect(h.kind).toBe('heston');
     if (h.kind === 'heston') {
-      expect(Math.abs(h.rho - FO_HESTON.rho)).toBeLessThan(5e-3);
-      expect(Math.abs(h.v0 / FO_HESTON.v0 - 1)).toBeLessThan(2e-3);
+      expect(Math.abs(h.rho - FO_HESTON.rho), `rho ${h.rho} vs ${FO_HESTON.rho}`).toBeLessThan(5e-3);
+      expect(Math.abs(h.v0 / FO_HESTON.v0 - 1), `v0 ${h.v0} vs ${FO_HESTON.v0}`).toBeLessThan(2e-3);
+      expect(L.heston.EQD).toEqual({ v0: h.v0, kappa: h.kappa, theta: h.theta, sigma: h.sigma, rho: h.rho });
+      expect(L.reports.heston.EQD!.params).toEqual(L.heston.EQD);
     }
   });
 
+  // Rabinovitch (1989); Brigo & Mercurio (2006) Ch. 13–14: Black–Scholes refitted under Hull–White prices each
+  // ATM-forward target at its market vol (effective vol of the Gaussian-rate variance), to 1e-10 in vol.
   it('refits Black–Scholes under stochastic rates so each target vanilla still matches (closed-form check)', () => {
-    const v = L.variants.find((x) => x.id === 'bs+hw:dom')!;
-    const e = v.equities.find((x) => x.name === 'EQD')!;
+    const v = variant('bs+hw(DOM)');
+    const e = v.spec.equities.find((x) => x.name === 'EQD')!;
     expect(e.dynamics.kind).toBe('bs');
     const curve = makeCurve(snap.curves.DOM!);
     const eq = snap.equities.EQD!;
@@ -128,52 +164,61 @@ describe('ladder calibration', () => {
           q: 0.01,
           curve,
           vol: e.dynamics,
-          hw: v.hullWhite.DOM!,
+          hw: v.spec.rates.DOM!.hw!,
           rho: 0.2,
         });
-        expect(Math.abs(r.effectiveVol - gridVolAt(eq, curve, T, F)), `T=${T}`).toBeLessThan(1e-10);
+        const mkt = gridVolAt(eq, curve, T, F);
+        expect(Math.abs(r.effectiveVol - mkt), `T=${T}: model ${r.effectiveVol}, market ${mkt}`).toBeLessThan(
+          1e-10,
+        );
       }
     // The foreign equity keeps deterministic ASH rates in this variant.
-    expect(v.reports.EQF!.model).toBe('bs');
+    expect(v.spec.rates.ASH!.hw).toBeUndefined();
+    expect(L.reports.variants['bs+hw(DOM)']!.equities.EQF!.model).toBe('bs');
   });
 
-  it('calibrates one variant on its own to the same result', () => {
-    const one = calibrateVariant(
-      snap,
-      { equities: ['EQD', 'EQF'], factors: { stochVol: true, domRate: true, forRate: true } },
-      { stochVol: true, domRate: true, forRate: false },
-    );
-    const ladder = L.variants.find((v) => v.id === 'heston+hw:dom')!;
-    expect(one.equities).toEqual(ladder.equities);
-    expect(one.ok).toBe(ladder.ok);
+  it('calibrates a variant to the same parameters whatever other variants the ladder holds', () => {
+    const small = calibrateLadder({ ...req, candidates: ['stochVol', 'domesticRate'] });
+    const one = small.variants.find((v) => v.id === 'heston+hw(DOM)')!;
+    expect(one.spec.equities).toEqual(variant('heston+hw(DOM)').spec.equities);
+    expect(one.calibration.fit).toEqual(variant('heston+hw(DOM)').calibration.fit);
   });
 
   it('carries the FX pair of the foreign equity with its quanto correlation', () => {
-    expect(L.fx['ASH/DOM']!.spec.vol).toBe(0.1);
-    expect(L.fx['ASH/DOM']!.quanto.EQF!.rho).toBe(-0.2);
+    const s = variant('bs').spec;
+    expect(s.fx).toEqual([{ name: 'ASH/DOM', foreign: 'ASH', spot: 2, vol: 0.1 }]);
+    const n = s.correlation.names;
+    expect(s.correlation.matrix[n.indexOf('eq:EQF')]![n.indexOf('fx:ASH/DOM')]).toBe(-0.2);
   });
 
-  it('builds the local-vol diagnostic on request and refuses a Monte Carlo refit without its settings', () => {
-    const lv = calibrateLadder(snap, {
-      equities: ['EQD'],
-      factors: { stochVol: false, domRate: false, forRate: false },
-      localVol: true,
+  it('gives the Monte Carlo-corrected refit the study’s paths, its own seed and fine steps', () => {
+    const base = { snapshot: snap, analysis: basis, candidates: req.candidates, required: [] };
+    const mc = studyLadderRequest({
+      ...base,
+      settings: { ...DEFAULT_SETTINGS, hestonRefit: 'monteCarlo', seed: 'run-7', paths: 131072 },
     });
-    expect(lv.localVol.EQD!.dynamics.kind).toBe('localvol');
-    expect(lv.localVol.EQD!.flooredCells).toBe(0);
-    expect(() =>
-      calibrateLadder(snap, {
-        equities: ['EQD'],
-        factors: { stochVol: true, domRate: true, forRate: false },
-        refit: 'monte-carlo',
-      }),
-    ).toThrow(/must give paths and seed/);
+    // Auxiliary paths = 131072 × 0.25 = 32768 (≥ 16384); step at most half a month.
+    expect(mc.hestonMcRefit).toEqual({ paths: 32768, seed: 'run-7/heston-refit', maxStep: 1 / 24 });
+    const small = studyLadderRequest({
+      ...base,
+      settings: { ...DEFAULT_SETTINGS, hestonRefit: 'monteCarlo', paths: 8192 },
+    });
+    expect(small.hestonMcRefit!.paths).toBe(16384);
+    expect(studyLadderRequest({ ...base, settings: DEFAULT_SETTINGS }).hestonMcRefit).toBeUndefined();
   });
 
   it('asks for rate vols when a currency with a stochastic rate has none', () => {
     const s2 = { ...snap, rateVols: { DOM: snap.rateVols!.DOM! } };
+    expect(() => fitHullWhite(s2, 'ASH', 5)).toThrow(
+      /market\.rateVols\.ASH must give caplet or swaption vols/,
+    );
     expect(() =>
-      calibrateLadder(s2, { equities: ['EQF'], factors: { stochVol: false, domRate: false, forRate: true } }),
+      calibrateLadder({
+        ...req,
+        snapshot: s2,
+        analysis: snapshotLadderBasis(s2, { equities: ['EQF'] }),
+        candidates: ['foreignRate'],
+      }),
     ).toThrow(/rateVols\.ASH must give caplet or swaption vols/);
   });
 
