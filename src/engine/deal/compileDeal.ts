@@ -14,6 +14,7 @@ import {
 } from './checkExpression.ts';
 import { expandSchedule, isoDayNumber, toYearFraction } from './dealDates.ts';
 import { dealShapeIssues, IDENT } from './dealSchema.ts';
+import { resolvePast } from './resolvePast.ts';
 import {
   COMPILED_FORMAT,
   type CompiledDeal,
@@ -22,13 +23,14 @@ import {
   type CompiledPayment,
   type Conversion,
   type DealInput,
+  type HistoryNeed,
   type LevelSource,
   type PaymentInput,
   type Program,
   type ProgramNode,
   type RunningSpec,
 } from './types.ts';
-import { exp, log, pow } from '../math/detMath.ts';
+import { scalarBinary, scalarUnary } from './scalarOps.ts';
 
 /** Everything found while checking a deal; `compiled` is present when there is no error. */
 export interface DealCheck {
@@ -36,6 +38,11 @@ export interface DealCheck {
   /** Expression errors with character positions (each also appears in `issues`). */
   expressionErrors: ExpressionError[];
   compiled?: CompiledDeal;
+  /**
+   * For a deal under way (a date or a period before the valuation date): every past level and rate it reads, and
+   * whether the file gives it. Absent for a deal that starts on or after its valuation date.
+   */
+  historyNeeds?: HistoryNeed[];
 }
 
 const hasOwn = (o: object, k: string): boolean => Object.prototype.hasOwnProperty.call(o, k);
@@ -62,56 +69,6 @@ function foldConstant(e: CheckedExpr, params: Map<string, number>): number {
       if (e.fn === 'clamp') return Math.min(Math.max(v[0]!, v[1]!), v[2]!);
       return NaN;
     }
-  }
-}
-
-function scalarUnary(fn: string, a: number): number {
-  switch (fn) {
-    case 'neg':
-      return -a;
-    case 'not':
-      return a === 0 ? 1 : 0;
-    case 'abs':
-      return Math.abs(a);
-    case 'exp':
-      return exp(a);
-    case 'log':
-      return log(a);
-    case 'sqrt':
-      return Math.sqrt(a);
-    default:
-      return Math.floor(a);
-  }
-}
-
-function scalarBinary(fn: string, a: number, b: number): number {
-  switch (fn) {
-    case 'add':
-      return a + b;
-    case 'sub':
-      return a - b;
-    case 'mul':
-      return a * b;
-    case 'div':
-      return a / b;
-    case 'pow':
-      return pow(a, b);
-    case 'lt':
-      return a < b ? 1 : 0;
-    case 'le':
-      return a <= b ? 1 : 0;
-    case 'gt':
-      return a > b ? 1 : 0;
-    case 'ge':
-      return a >= b ? 1 : 0;
-    case 'eq':
-      return a === b ? 1 : 0;
-    case 'ne':
-      return a !== b ? 1 : 0;
-    case 'and':
-      return a !== 0 && b !== 0 ? 1 : 0;
-    default:
-      return a !== 0 || b !== 0 ? 1 : 0;
   }
 }
 
@@ -242,15 +199,8 @@ function lower(L: Lowering, tree: CheckedExpr, field: string, text: string, time
         }
         const tau = c(0);
         if (!(tau > 0 && tau <= 50)) bad('fixing(C, tau) needs 0 < tau <= 50 years', tau);
-        for (const t of times) {
-          if (t - tau < -1e-9)
-            bad(
-              'fixing(C, tau) is fixed before the valuation date on an event date',
-              { t, tau },
-              'use a parameter for a rate already fixed',
-            );
-          else L.gridTimes.add(Math.max(0, t - tau));
-        }
+        // a period that began before the valuation date reads its rate from the deal's history (resolvePast)
+        for (const t of times) if (t - tau >= -1e-9) L.gridTimes.add(Math.max(0, t - tau));
         return push({ op: 'fixing', currency: e.names[0]!, tau });
       }
       case 'term_rate': {
@@ -385,11 +335,12 @@ export function checkDeal(raw: unknown): DealCheck {
   const schedules: Record<string, number[]> = {};
   const starts: Record<string, number> = {};
   for (const [k, s] of Object.entries(deal.schedules)) {
-    const times = guard(() => expandSchedule(`deal.schedules.${k}`, s, valuationDay));
+    // dates before the valuation date belong to a deal under way: resolved from its history (resolvePast)
+    const times = guard(() => expandSchedule(`deal.schedules.${k}`, s, valuationDay, true));
     if (times) schedules[k] = times;
     starts[k] =
       'start' in s
-        ? (guard(() => toYearFraction(`deal.schedules.${k}.start`, s.start, valuationDay)) ?? 0)
+        ? (guard(() => toYearFraction(`deal.schedules.${k}.start`, s.start, valuationDay, true)) ?? 0)
         : 0;
   }
   if (issues.some((i) => i.severity === 'error')) return { issues, expressionErrors: [] };
@@ -520,6 +471,34 @@ export function checkDeal(raw: unknown): DealCheck {
   });
 
   if (issues.some((i) => i.severity === 'error')) return { issues, expressionErrors: exprErrors };
+  const past = resolvePast({
+    deal,
+    valuationDay,
+    events,
+    exercise,
+    rolled: Object.fromEntries(Object.entries(deal.schedules).map(([k, s]) => [k, 'start' in s])),
+    running: L.running,
+    runningLabels: L.runningKeys.map((key) => {
+      const k = JSON.parse(key) as { fn: string; source: LevelSource; sched: string | null };
+      const fn = k.fn === 'min' ? 'lowest' : k.fn === 'max' ? 'highest' : 'average';
+      const id =
+        k.source.kind === 'equity'
+          ? k.source.name
+          : (Object.entries(deal.underlyings).find(
+              ([, u]) =>
+                u.kind === 'fx' &&
+                k.source.kind === 'fx' &&
+                u.units === k.source.units &&
+                u.per === k.source.per,
+            )?.[0] ?? '?');
+      return `${fn}(${id}${k.sched === null ? '' : `, ${k.sched}`})`;
+    }),
+    schedules,
+    state: stateNames.map((name) => ({ name, initial: deal.state![name]! })),
+  });
+  issues.push(...past.issues);
+  const needs = past.underWay ? { historyNeeds: past.needs } : {};
+  if (issues.some((i) => i.severity === 'error')) return { issues, expressionErrors: exprErrors, ...needs };
   const grid = [...L.gridTimes].filter((t) => t > 0).sort((a, b) => a - b);
   const dedup: number[] = [];
   for (const t of grid) if (dedup.length === 0 || t - dedup[dedup.length - 1]! > 1e-10) dedup.push(t);
@@ -535,16 +514,22 @@ export function checkDeal(raw: unknown): DealCheck {
       u.kind === 'fx' ? [{ id, units: u.units, per: u.per }] : [],
     ),
     rates: [...rates],
-    state: stateNames.map((name) => ({ name, initial: deal.state![name]! })),
-    schedules,
-    running: L.running.map((r) => ({ fn: r.fn, source: r.source, times: r.times })),
-    events,
-    exercise,
+    state: past.state,
+    schedules: past.schedules,
+    running: past.running.map((r) => ({
+      fn: r.fn,
+      source: r.source,
+      times: r.times,
+      ...(r.seed ? { seed: r.seed } : {}),
+    })),
+    events: past.events,
+    exercise: past.exercise,
     fundingSpread: deal.fundingSpread ?? 0,
     gridTimes: dedup,
     lastTime: dedup.length > 0 ? dedup[dedup.length - 1]! : 0,
   };
-  return { issues, expressionErrors: exprErrors, compiled };
+  if (past.history) compiled.history = past.history;
+  return { issues, expressionErrors: exprErrors, compiled, ...needs };
 }
 
 /** Compiles a deal file; throws an EngineError listing every issue when it is not valid. */

@@ -12,8 +12,16 @@ export function isoDayNumber(field: string, text: string): number {
   return parseIsoDate(text, field).dayNumber;
 }
 
-/** Converts a date input to a year fraction (ACT/365F) from the valuation date (a day number, or null if absent). */
-export function toYearFraction(field: string, value: DateInput, valuationDay: number | null): number {
+/**
+ * Converts a date input to a year fraction (ACT/365F) from the valuation date (a day number, or null if absent).
+ * With `allowPast`, an ISO date before the valuation date gives a negative year fraction (a deal under way).
+ */
+export function toYearFraction(
+  field: string,
+  value: DateInput,
+  valuationDay: number | null,
+  allowPast = false,
+): number {
   if (typeof value === 'number') {
     if (!Number.isFinite(value) || value < 0)
       fail('E_BAD_DATE', field, 'must be a year fraction >= 0', value);
@@ -29,7 +37,8 @@ export function toYearFraction(field: string, value: DateInput, valuationDay: nu
       'add "valuationDate": "YYYY-MM-DD"',
     );
   const t = (day - valuationDay) / 365;
-  if (t < 0) fail('E_DATE_BEFORE_VALUATION', field, 'must not be before the valuation date', value);
+  if (t < 0 && !allowPast)
+    fail('E_DATE_BEFORE_VALUATION', field, 'must not be before the valuation date', value);
   return t;
 }
 
@@ -49,20 +58,26 @@ const weekday = (day: number): number => (((day + 4) % 7) + 7) % 7;
 
 /**
  * Expands a schedule to sorted, distinct year fractions. Month and year steps roll from the start date and keep its
- * day of month (clipped to the month's end); with year-fraction inputs a month is 1/12 year and a day 1/365.
+ * day of month (clipped to the month's end); with year-fraction inputs a month is 1/12 year and a day 1/365. With
+ * `allowPast`, dates before the valuation date are kept as negative year fractions.
  */
-export function expandSchedule(field: string, s: ScheduleInput, valuationDay: number | null): number[] {
+export function expandSchedule(
+  field: string,
+  s: ScheduleInput,
+  valuationDay: number | null,
+  allowPast = false,
+): number[] {
   let times: number[];
   if ('dates' in s) {
-    times = s.dates.map((d, i) => toYearFraction(`${field}.dates[${i}]`, d, valuationDay));
+    times = s.dates.map((d, i) => toYearFraction(`${field}.dates[${i}]`, d, valuationDay, allowPast));
   } else {
     const m = STEP.exec(s.every);
     if (!m)
       fail('E_BAD_STEP', `${field}.every`, 'must be a count and a unit D, B, W, M or Y (e.g. 3M)', s.every);
     const n = Number(m[1]);
     const unit = m[2]!;
-    const t0 = toYearFraction(`${field}.start`, s.start, valuationDay);
-    const t1 = toYearFraction(`${field}.end`, s.end, valuationDay);
+    const t0 = toYearFraction(`${field}.start`, s.start, valuationDay, allowPast);
+    const t1 = toYearFraction(`${field}.end`, s.end, valuationDay, allowPast);
     if (!(t1 > t0)) fail('E_BAD_SCHEDULE', `${field}.end`, 'must be after the start', s.end);
     times = [];
     const maxDates = 20_000;

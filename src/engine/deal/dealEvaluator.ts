@@ -135,6 +135,22 @@ function nodeFn(node: ProgramNode, names: Map<string, string>, nodes: readonly P
         return s.subarray(env.k * env.n, (env.k + 1) * env.n);
       };
     case 'fixing':
+      if (node.known) {
+        // a period that began before the valuation date: its rate was fixed then (the deal's history)
+        const known = node.known;
+        const tau = node.tau;
+        return (env, _v, out) => {
+          const hit = known.find((x) => Math.abs(x.time - env.t) <= 1e-9);
+          if (hit) return out.fill(hit.rate, 0, env.n);
+          const k0 = env.stepOf(
+            Math.max(0, env.t - (tau ?? env.dt)),
+            `fixing date ${env.t - (tau ?? env.dt)}`,
+          );
+          env.batch.bond(node.currency, k0, env.t, out);
+          for (let p = 0; p < env.n; p++) out[p] = (1 / out[p]! - 1) / (tau ?? env.dt);
+          return out;
+        };
+      }
       // Simple (money-market) rate set at t−τ for [t−τ, t]: L = (1/P(t−τ, t) − 1)/τ, Brigo & Mercurio (2006) eq. (1.11).
       return (env, _v, out) => {
         const tau = node.tau ?? env.dt;
@@ -506,7 +522,11 @@ export function makeDealRunner(compiled: CompiledDeal, opts: DealEvaluatorOption
     const runSteps = compiled.running.map((r) =>
       r.times === 'grid' ? null : new Set(r.times.map((t) => stepOf(t, 'observation date'))),
     );
-    const runCount = compiled.running.map(() => 0);
+    // a deal under way: running values continue from the observations before the valuation date
+    const runCount = compiled.running.map((r) => r.seed?.count ?? 0);
+    compiled.running.forEach((r, i) => {
+      if (r.seed) env.running[i]!.fill(r.seed.value);
+    });
     const scratch = new Float64Array(n);
     const occ: Occurrence[] = [];
     compiled.events.forEach((e, idx) =>
@@ -592,9 +612,13 @@ export function makeDealRunner(compiled: CompiledDeal, opts: DealEvaluatorOption
         const sched = owner.times;
         env.k = k;
         env.t = o.time;
-        env.dt = o.time - (o.dateIdx === 0 ? (owner.startTime ?? 0) : sched[o.dateIdx - 1]!);
-        env.index = o.dateIdx + 1;
-        env.count = sched.length;
+        // a deal under way: the first remaining period began at a past date, and index/count include past dates
+        env.dt =
+          o.dateIdx === 0 && owner.firstAccrual !== undefined
+            ? owner.firstAccrual
+            : o.time - (o.dateIdx === 0 ? (owner.startTime ?? 0) : sched[o.dateIdx - 1]!);
+        env.index = o.dateIdx + 1 + (owner.pastDates ?? 0);
+        env.count = sched.length + (owner.pastDates ?? 0);
         if (o.kind === 0) {
           const ev = events[o.idx]!;
           let mask = alive;

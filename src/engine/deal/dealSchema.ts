@@ -69,6 +69,13 @@ const exercise = z
   })
   .strict();
 
+const history = z
+  .object({
+    fixings: z.record(z.string(), z.record(z.string(), z.number().finite().positive())).optional(),
+    rates: z.record(z.string(), z.record(z.string(), z.number().finite().min(-1).max(10))).optional(),
+  })
+  .strict();
+
 /** zod schema of a deal file (`format: factor-triage/deal@1`). */
 export const dealSchema = z
   .object({
@@ -86,6 +93,7 @@ export const dealSchema = z
     events: z.array(event).min(1),
     exercise: z.array(exercise).optional(),
     fundingSpread: z.number().min(-0.2).max(0.2).optional(),
+    history: history.optional(),
   })
   .strict();
 

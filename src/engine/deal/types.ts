@@ -87,6 +87,20 @@ export interface ExerciseInput {
   conversion?: Conversion;
 }
 
+/**
+ * What has already happened to a deal under way: levels observed and rates fixed before the valuation date. Dates are
+ * ISO `YYYY-MM-DD` strictly before `valuationDate`.
+ */
+export interface HistoryInput {
+  /** Underlying id → date → level observed that day (an FX id in the direction the deal wrote it). */
+  fixings?: Record<string, Record<string, number>>;
+  /**
+   * Currency → date → simple rate per year (0.031 for 3.1 %) fixed that day for the period the deal reads from it:
+   * `fixing(C)` and `fixing(C, tau)` whose period starts that day, `term_rate(C, tau)` read that day.
+   */
+  rates?: Record<string, Record<string, number>>;
+}
+
 /** The deal file (JSON), as validated by `dealSchema`. */
 export interface DealInput {
   format: typeof DEAL_FORMAT;
@@ -110,6 +124,8 @@ export interface DealInput {
   exercise?: ExerciseInput[];
   /** Issuer funding spread (continuous, per year) added to discounting of every flow of a note. */
   fundingSpread?: number;
+  /** Past fixings of a deal whose schedules began before the valuation date. */
+  history?: HistoryInput;
 }
 
 // ---------------------------------------------------------------------------------------------------------------
@@ -138,7 +154,16 @@ export type ProgramNode =
    * Simple rate over [t − τ, t] fixed at t − τ: (1/P(t−τ, t) − 1)/τ. `tau` null: τ is the event's accrual `dt`
    * (the period since the schedule's previous date).
    */
-  | { op: 'fixing'; currency: string; tau: number | null }
+  | {
+      op: 'fixing';
+      currency: string;
+      tau: number | null;
+      /**
+       * Rates already fixed (from the deal's history) on the remaining event dates whose period started before the
+       * valuation date: event time (years) → simple rate per year. Absent when no remaining period started earlier.
+       */
+      known?: { time: number; rate: number }[];
+    }
   /** Simple rate over [t, t + tau] fixed at t. */
   | { op: 'termRate'; currency: string; tau: number }
   /** Par swap rate at t for `years` with `perYear` fixed payments. */
@@ -162,6 +187,11 @@ export interface RunningSpec {
   source: LevelSource;
   /** Observation times (years), or `grid` for every simulation step from 0. */
   times: number[] | 'grid';
+  /**
+   * For a deal under way: the value after the observations before the valuation date and their number (the
+   * remaining observations continue from it). Absent when nothing was observed before the valuation date.
+   */
+  seed?: { value: number; count: number };
 }
 
 export interface CompiledPayment {
@@ -176,6 +206,10 @@ export interface CompiledEvent {
   times: number[];
   /** Start of the first accrual period (years): the schedule's start date when rolled, else 0. */
   startTime?: number;
+  /** For a deal under way: dates of the schedule before the valuation date (`index` and `count` include them). */
+  pastDates?: number;
+  /** `dt` of the first remaining date when its period began before the valuation date (years). */
+  firstAccrual?: number;
   when: Program | null;
   pay: CompiledPayment[];
   set: { name: string; value: Program }[];
@@ -188,6 +222,10 @@ export interface CompiledExercise {
   times: number[];
   /** Start of the first accrual period (years): the schedule's start date when rolled, else 0. */
   startTime?: number;
+  /** For a deal under way: dates of the schedule before the valuation date (`index` and `count` include them). */
+  pastDates?: number;
+  /** `dt` of the first remaining date when its period began before the valuation date (years). */
+  firstAccrual?: number;
   by: 'issuer' | 'holder';
   amount: CompiledPayment;
 }
@@ -210,6 +248,46 @@ export interface CompiledDeal {
   /** Every time (years) the simulation grid must contain, sorted, without 0. */
   gridTimes: number[];
   lastTime: number;
+  /** For a deal under way: what happened before the valuation date. Absent for a deal with no past date. */
+  history?: CompiledHistory;
+}
+
+/** One payment made before the valuation date: already paid, so not part of the value. */
+export interface PastPayment {
+  event: string;
+  /** ISO date. */
+  date: string;
+  currency: string;
+  /** Per unit of notional, in `currency`. */
+  amount: number;
+  /** notional × amount, in `currency`. */
+  cash: number;
+}
+
+/** The past of a deal under way, resolved once at compile time from its history. */
+export interface CompiledHistory {
+  valuationDate: string;
+  /** Every event date before the valuation date, in the order resolved, and whether the event fired. */
+  events: { event: string; date: string; fired: boolean }[];
+  payments: PastPayment[];
+  /** Exercise dates before the valuation date (rights not taken; ignored). */
+  ignoredExercise: { label: string; date: string }[];
+  /** State variables after the past (the initial state of the remaining deal). */
+  state: Record<string, number>;
+}
+
+/** A past level or rate the deal needs from its history, and whether the deal file gives it. */
+export interface HistoryNeed {
+  kind: 'fixing' | 'rate';
+  /** Underlying id (fixing) or currency (rate). */
+  name: string;
+  /** ISO date. */
+  date: string;
+  /** Field path, e.g. `deal.history.fixings.ALDR["2026-05-23"]`. */
+  field: string;
+  /** What reads it, e.g. `event "coupon" on 2026-05-23`. */
+  neededBy: string;
+  given: boolean;
 }
 
 // ---------------------------------------------------------------------------------------------------------------
