@@ -26,15 +26,22 @@ export type Verdict = 'keep' | 'drop' | 'undecided';
 export interface ErrorBudget {
   /** |Δ(dt) − Δ(dt/2)|: change of Δ when the time step is halved, on the same random numbers. */
   stepHalving: number;
-  /** Effect of the two variants' calibration residuals on Δ (first order: |deal vega| × vol fit error). */
+  /** Effect of the two variants' calibration residuals on Δ (first order: |deal vega| × analytic vol fit error). */
   calibration: number;
+  /**
+   * Effect of the two variants' Monte Carlo repricing errors on Δ: |deal vega| × (implied-vol error of each
+   * simulated variant on its own calibrated vanillas beyond two standard errors). It catches a simulated model that
+   * misprices its instruments by more than its analytic fit says (an approximate characteristic function, a
+   * discretisation bias at the quotes). Absent in files written before it existed: counted as 0.
+   */
+  repricing?: number;
   /** Gap between an early-exercise lower bound and its upper bound; null when not applicable or not available. */
   exerciseGap: number | null;
 }
 
 /** Total budget b = sum of the parts (a conservative, triangle-inequality bound; common practice). */
 export function budgetTotal(b: ErrorBudget): number {
-  return b.stepHalving + b.calibration + (b.exerciseGap ?? 0);
+  return b.stepHalving + b.calibration + (b.repricing ?? 0) + (b.exerciseGap ?? 0);
 }
 
 /** The materiality threshold τ, as the user states it. */
@@ -271,7 +278,10 @@ export interface JointTest {
   /** price(reduced) − price(richest). */
   difference: number;
   se: number;
+  /** Total budget b of the difference. */
   budget: number;
+  /** Its parts, when the caller gave them (absent in files written before they were recorded). */
+  budgetParts?: ErrorBudget;
   z: number;
   /** `confirmed`: the dropped factors together are immaterial; `rejected`: together they matter; else `inconclusive`. */
   outcome: 'confirmed' | 'rejected' | 'inconclusive' | 'nothingDropped';
@@ -286,16 +296,20 @@ export function jointTest(args: {
   dropped: string[];
   difference: number;
   se: number;
-  budget: number;
+  /** The budget of the difference: its parts (recorded with the outcome), or a total. */
+  budget: ErrorBudget | number;
   tau: number;
   alpha: number;
 }): JointTest {
-  const { dropped, difference, se, budget, tau, alpha } = args;
+  const { dropped, difference, se, tau, alpha } = args;
+  const parts = typeof args.budget === 'number' ? null : { ...args.budget };
+  const budget = parts ? budgetTotal(parts) : (args.budget as number);
+  requireNonNegative('joint.budget', budget);
   const z = normQuantile(1 - alpha / 2);
   let outcome: JointTest['outcome'];
   if (dropped.length === 0) outcome = 'nothingDropped';
   else if (Math.abs(difference) + z * se + budget < tau) outcome = 'confirmed';
   else if (Math.abs(difference) - z * se - budget > tau) outcome = 'rejected';
   else outcome = 'inconclusive';
-  return { dropped, difference, se, budget, z, outcome };
+  return { dropped, difference, se, budget, ...(parts ? { budgetParts: parts } : {}), z, outcome };
 }

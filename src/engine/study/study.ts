@@ -16,7 +16,9 @@ import { makeCurve } from '../market/curve.ts';
 import type { MarketSnapshot } from '../market/types.ts';
 import { isPsd } from '../math/linalg.ts';
 import { bsPrice } from '../models/blackScholes.ts';
-import { bsImpliedVol } from '../models/blackScholes.ts';
+import { bsGreeks, bsImpliedVol } from '../models/blackScholes.ts';
+import { bachelierImpliedVol } from '../models/bachelier.ts';
+import { normPdf } from '../math/normal.ts';
 import { gridVolAt } from '../calibration/volGrid.ts';
 import { calibrateLocalVol } from '../calibration/localVolCalibration.ts';
 import { equityForward } from '../calibration/volGrid.ts';
@@ -61,6 +63,7 @@ import {
   type StudySettings,
   type Sweep,
   type ValueSe,
+  type VariantRepricing,
 } from './types.ts';
 
 /** Version written into study files. */
@@ -241,6 +244,74 @@ function fairnessVanillas(
 
 function maxAbsVolErr(l: CalibratedLadder, mask: number): number {
   return l.variants.find((v) => v.mask === mask)?.calibration.maxAbsVolError ?? 0;
+}
+
+/** Vol-space reading of one Monte Carlo reprice: the repriced vol, its SE and its error beyond two SE (decimal vols). */
+interface VolError {
+  vol: number;
+  volSe: number;
+  excess: number;
+}
+
+/**
+ * A vanilla repriced by Monte Carlo at price `mc` ± `se`, in Black–Scholes implied vol: SE_σ = SE / vega at the
+ * market vol (first-order delta method, common practice; vega ∂V/∂σ = S e^{−qT} φ(d₁) √T, Black & Scholes 1973),
+ * excess = max(0, |σ_MC − σ_market| − 2·SE_σ). A price outside the no-arbitrage bounds has no implied vol; its error
+ * is then read to first order as |mc − market| / vega.
+ */
+export function vanillaVolError(
+  snap: MarketSnapshot,
+  q: FairnessVanilla & { market: number; vol: number },
+  mc: number,
+  se: number,
+): VolError {
+  const eqq = snap.equities[q.equity]!;
+  const curve = makeCurve(snap.curves[eqq.currency]!, `market.curves.${eqq.currency}`);
+  const r0 = -log(curve.df(q.expiry)) / q.expiry;
+  const F = equityForward(eqq, curve, q.expiry);
+  const qq = r0 - log(F / eqq.spot) / q.expiry;
+  const type = q.isCall ? 'call' : 'put';
+  const leg = { type, S: eqq.spot, K: q.strike, T: q.expiry, r: r0, q: qq } as const;
+  const vega = Math.max(bsGreeks({ ...leg, vol: q.vol }).vega, 1e-300);
+  const volSe = se / vega;
+  let iv = Number.NaN;
+  try {
+    iv = bsImpliedVol({ ...leg, price: mc });
+  } catch {
+    iv = Number.NaN;
+  }
+  const ok = Number.isFinite(iv);
+  const err = ok ? Math.abs(iv - q.vol) : Math.abs(mc - q.market) / vega;
+  return { vol: ok ? iv : q.vol, volSe, excess: Math.max(0, err - 2 * volSe) };
+}
+
+/**
+ * A caplet repriced by Monte Carlo, in normal (Bachelier) vol: price = τ P(0,T₂) · Bachelier(F, K, T₁, σ_N) with
+ * F = (P(0,T₁)/P(0,T₂) − 1)/τ (Brigo & Mercurio 2006, Sec. 1.5; Bachelier 1900 in the form of Jäckel 2017, Sec. 1),
+ * vega A √T₁ φ(d), d = (F − K)/(σ_N √T₁); SE and excess as for {@link vanillaVolError}.
+ */
+export function capletVolError(
+  snap: MarketSnapshot,
+  q: { currency: string; expiry: number; tenor: number; strike: number; vol: number; market: number },
+  mc: number,
+  se: number,
+): VolError {
+  const curve = makeCurve(snap.curves[q.currency]!, `market.curves.${q.currency}`);
+  const P2 = curve.df(q.expiry + q.tenor);
+  const F = (curve.df(q.expiry) / P2 - 1) / q.tenor;
+  const A = q.tenor * P2;
+  const sq = Math.sqrt(q.expiry);
+  const vega = Math.max(A * sq * normPdf((F - q.strike) / (q.vol * sq)), 1e-300);
+  const volSe = se / vega;
+  let iv = Number.NaN;
+  try {
+    iv = bachelierImpliedVol({ type: 'call', F, K: q.strike, T: q.expiry, annuity: A, price: mc });
+  } catch {
+    iv = Number.NaN;
+  }
+  const ok = Number.isFinite(iv);
+  const err = ok ? Math.abs(iv - q.vol) : Math.abs(mc - q.market) / vega;
+  return { vol: ok ? iv : q.vol, volSe, excess: Math.max(0, err - 2 * volSe) };
 }
 
 /**
@@ -581,6 +652,92 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
     const final = lookStats[lookStats.length - 1]!;
     const K = final.mean.length;
 
+    // --- evidence of fairness, before the decisions: every ladder variant reprices its vanillas and caplets on the
+    // first `aux` paths of the study's seed (batches merged in order, so identical for any worker count). Each
+    // variant's implied-vol error beyond two of its own SE on its calibrated vanillas is the `repricing` part of the
+    // budget: it catches a simulated model that misses its instruments by more than its analytic fit says.
+    const repricing: Record<string, VariantRepricing> = {};
+    const repricingVol: Record<number, number> = {};
+    for (const v of ladder.variants) {
+      repricing[v.id] = { volExcess: 0, instrument: null, quotes: 0, capletNormalVolExcess: null };
+      repricingVol[v.mask] = 0;
+    }
+    if (vanillas.length + caplets.length > 0) {
+      progress(
+        0.7,
+        'fairness',
+        `${vanillas.length} vanillas and ${caplets.length} caplets per variant on the study's paths`,
+      );
+      const nOut = vanillas.length + caplets.length;
+      const spec: RunSpec = {
+        variants,
+        payoff: {
+          factory: fairnessPayoffFactoryUrl(),
+          description: { vanillas, caplets, gridTimes: eventTimes },
+        },
+        grid: { eventTimes, maxStep },
+        seed: S.seed,
+        batchSize: S.batchSize,
+        maxPaths: aux,
+      };
+      const r = await runInLooks({ spec, executor, lookPaths: [aux], signal: opts.signal });
+      simSeconds += r.seconds;
+      const st = columnStats(r.looks[0]!);
+      ladder.variants.forEach((v, vi) => {
+        const rep = repricing[v.id]!;
+        caplets.forEach((q, ci) => {
+          if (!v.spec.rates[q.currency]?.hw) return;
+          const c = vi * nOut + vanillas.length + ci;
+          const mc = st.mean(c);
+          const se = st.se(c);
+          const m = capletVolError(snap, q, mc, se);
+          rep.capletNormalVolExcess = Math.max(rep.capletNormalVolExcess ?? 0, m.excess);
+          v.calibration.fit.push({
+            instrument: `${q.currency} caplet ${q.expiry}y×${q.tenor}y K=${(q.strike * 100).toFixed(5)}% (Monte Carlo reprice)`,
+            marketVol: q.vol,
+            modelVol: m.vol,
+            priceError: mc - q.market,
+            mcError: { value: mc - q.market, se },
+            calibrated: true,
+            mcVolSe: m.volSe,
+          });
+        });
+        const dyn = (name: string) => v.spec.equities.find((e) => e.name === name)?.dynamics.kind;
+        vanillas.forEach((q, qi) => {
+          const c = vi * nOut + qi;
+          const mc = st.mean(c);
+          const se = st.se(c);
+          const m = vanillaVolError(snap, q, mc, se);
+          // A Black–Scholes variant is fitted at one strike per expiry (the ATM forward unless the settings name
+          // an absolute strike, which the repriced vanillas do not carry): only its ATM rows are its own.
+          const calibrated =
+            dyn(q.equity) !== 'bs' || (q.atm && S.calibrationStrikes[q.equity] === undefined);
+          const instrument = `${q.equity} ${q.isCall ? 'call' : 'put'} K=${Math.round(q.strike * 100) / 100} T=${q.expiry} (Monte Carlo reprice)`;
+          if (calibrated) {
+            rep.quotes++;
+            if (m.excess > rep.volExcess) {
+              rep.volExcess = m.excess;
+              rep.instrument = instrument;
+            }
+          }
+          v.calibration.fit.push({
+            instrument,
+            marketVol: q.vol,
+            modelVol: m.vol,
+            priceError: mc - q.market,
+            mcError: { value: mc - q.market, se },
+            calibrated,
+            mcVolSe: m.volSe,
+          });
+        });
+        repricingVol[v.mask] = rep.volExcess;
+      });
+      if (caplets.length)
+        limitations.push(
+          'Caplets repriced on the study paths are judged in normal vol (shown per variant) but stay out of the error budget: the study has no deal sensitivity to rate vols to turn a rate-vol error into price.',
+        );
+    }
+
     // greeks of each ladder variant
     const h = S.greeks;
     const greekW = {
@@ -603,15 +760,19 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         ? { [i]: 0.01 / (2 * h.volBump), [i + vegaMasks.length]: -0.01 / (2 * h.volBump) }
         : null;
     };
-    const calBudget = (a: number, b: number): number => {
+    // |deal vega| per unit of vol (richest variant), which turns a vol error into price for the calibration and
+    // repricing parts (first order; common practice).
+    const vegaPerUnit = ((): number | null => {
       const vw = vegaOf(full);
-      if (!vw || !vegaStats) return 0;
-      const vegaPerUnit = Math.abs(combination(vegaStats, vw).value) * 100;
-      return vegaPerUnit * (maxAbsVolErr(ladder, a) + maxAbsVolErr(ladder, b));
-    };
+      return vw && vegaStats ? Math.abs(combination(vegaStats, vw).value) * 100 : null;
+    })();
+    const calBudget = (a: number, b: number): number =>
+      vegaPerUnit === null ? 0 : vegaPerUnit * (maxAbsVolErr(ladder, a) + maxAbsVolErr(ladder, b));
+    const repBudget = (a: number, b: number): number =>
+      vegaPerUnit === null ? 0 : vegaPerUnit * ((repricingVol[a] ?? 0) + (repricingVol[b] ?? 0));
     if (!vegaStats)
       limitations.push(
-        'The error budget has no calibration-residual part: hedge ratios (vega) were not computed.',
+        'The error budget has no calibration-residual and no repricing part: hedge ratios (vega) were not computed, so vol errors cannot be turned into price.',
       );
     const gapFor = (a: number, b: number): number | null =>
       hasExercise ? (gapOf[variants[a]!.id] ?? 0) + (gapOf[variants[b]!.id] ?? 0) : null;
@@ -619,8 +780,12 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
     const budgetFor = (fi: number): ErrorBudget => ({
       stepHalving: stepHalving[candidates[fi]!]!,
       calibration: calBudget(full, looFor(fi)),
+      repricing: repBudget(full, looFor(fi)),
       exerciseGap: gapFor(full, looFor(fi)),
     });
+    const budgetParts: Record<string, ErrorBudget> = Object.fromEntries(
+      candidates.map((f, fi) => [f, budgetFor(fi)]),
+    );
     const estimatesAt = (st: ColumnStats): FactorEstimate[] =>
       candidates.map((f, fi) => {
         const d = combination(st, { [col(full)]: 1, [col(looFor(fi))]: -1 });
@@ -672,10 +837,12 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
             dropped,
             difference: jd.value,
             se: jd.se,
-            budget:
-              stepBudget({ [keepMask]: 1, [full]: -1 }) +
-              calBudget(keepMask, full) +
-              (gapFor(keepMask, full) ?? 0),
+            budget: {
+              stepHalving: stepBudget({ [keepMask]: 1, [full]: -1 }),
+              calibration: calBudget(keepMask, full),
+              repricing: repBudget(keepMask, full),
+              exerciseGap: gapFor(keepMask, full),
+            },
             tau,
             alpha: S.alpha,
           })
@@ -728,7 +895,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
             factor: f,
             delta: e.value,
             se: e.se,
-            budget: { stepHalving: 0, calibration: 0, exerciseGap: null },
+            budget: { stepHalving: 0, calibration: 0, repricing: 0, exerciseGap: null },
           });
         });
         if (est.length === 0) continue;
@@ -737,78 +904,8 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         );
       }
       limitations.push(
-        'Hedge-ratio tests use one look at level α per hedge ratio and no error budget (step halving and calibration residuals are budgeted for the price only).',
+        'Hedge-ratio tests use one look at level α per hedge ratio and no error budget: the step-halving check runs the unbumped scenario only (it cannot halve the step of the spot and rate bumps without rerunning them), and calibration and repricing residuals are budgeted for the price only.',
       );
-    }
-
-    // evidence of fairness: every ladder variant reprices its vanillas on the study's paths
-    if (vanillas.length + caplets.length > 0) {
-      progress(
-        0.72,
-        'fairness',
-        `${vanillas.length} vanillas and ${caplets.length} caplets per variant on the study's paths`,
-      );
-      const nOut = vanillas.length + caplets.length;
-      const spec: RunSpec = {
-        variants,
-        payoff: {
-          factory: fairnessPayoffFactoryUrl(),
-          description: { vanillas, caplets, gridTimes: eventTimes },
-        },
-        grid: { eventTimes, maxStep },
-        seed: S.seed,
-        batchSize: S.batchSize,
-        maxPaths: aux,
-      };
-      const r = await runInLooks({ spec, executor, lookPaths: [aux], signal: opts.signal });
-      simSeconds += r.seconds;
-      const st = columnStats(r.looks[0]!);
-      ladder.variants.forEach((v, vi) => {
-        caplets.forEach((q, ci) => {
-          if (!v.spec.rates[q.currency]?.hw) return;
-          const c = vi * nOut + vanillas.length + ci;
-          const mc = st.mean(c);
-          v.calibration.fit.push({
-            instrument: `${q.currency} caplet ${q.expiry}y×${q.tenor}y K=${(q.strike * 100).toFixed(5)}% (Monte Carlo reprice)`,
-            marketVol: q.vol,
-            modelVol: q.vol,
-            priceError: mc - q.market,
-            mcError: { value: mc - q.market, se: st.se(c) },
-            calibrated: true,
-          });
-        });
-        vanillas.forEach((q, qi) => {
-          const c = vi * nOut + qi;
-          const mc = st.mean(c);
-          const eqq = snap.equities[q.equity]!;
-          const curve = makeCurve(snap.curves[eqq.currency]!, 'curve');
-          const r0 = -log(curve.df(q.expiry)) / q.expiry;
-          const F = equityForward(eqq, curve, q.expiry);
-          let iv = q.vol;
-          try {
-            iv = bsImpliedVol({
-              type: q.isCall ? 'call' : 'put',
-              price: mc,
-              S: eqq.spot,
-              K: q.strike,
-              T: q.expiry,
-              r: r0,
-              q: r0 - log(F / eqq.spot) / q.expiry,
-            });
-          } catch {
-            iv = q.vol;
-          }
-          const dyn = v.spec.equities.find((e) => e.name === q.equity)?.dynamics.kind;
-          v.calibration.fit.push({
-            instrument: `${q.equity} ${q.isCall ? 'call' : 'put'} K=${Math.round(q.strike * 100) / 100} T=${q.expiry} (Monte Carlo reprice)`,
-            marketVol: q.vol,
-            modelVol: Number.isFinite(iv) ? iv : q.vol,
-            priceError: mc - q.market,
-            mcError: { value: mc - q.market, se: st.se(c) },
-            calibrated: dyn !== 'bs' || q.atm,
-          });
-        });
-      });
     }
 
     // local-vol diagnostic: Black–Scholes, Heston and local vol on one finer grid (log-Euler needs small steps)
@@ -1079,7 +1176,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       );
     else if (ladder.variants.some((v) => v.calibration.characteristicFunction === 'approximate'))
       limitations.push(
-        'Heston under stochastic rates is refitted with the H1-HW approximation (Grzelak & Oosterlee 2011), not the full model; its vanilla fit on the study paths is shown above.',
+        'Heston under stochastic rates is refitted with the H1-HW approximation (Grzelak & Oosterlee 2011), not the full model; its Monte Carlo repricing error on its own vanillas beyond two SE enters the error budget (repricing part).',
       );
     if (S.scheme === 'qe')
       limitations.push('Heston paths use the QE scheme (Andersen 2008) with ρ(variance, rate) = 0.');
@@ -1131,6 +1228,8 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       modelRisk,
       stepHalving,
       stepHalvingChange: stepHalvingRaw,
+      budgetParts,
+      repricing,
       stability,
     };
     const recSummary = recFactors.length

@@ -5,7 +5,15 @@
 import type { DealAnalysis, DealInput } from '../deal/types.ts';
 import type { MarketSnapshot } from '../market/types.ts';
 import type { VariantSpec } from '../simulation/types.ts';
-import type { FactorLookDecision, JointTest, Look, SpendingKind, Threshold, Verdict } from './decision.ts';
+import type {
+  ErrorBudget,
+  FactorLookDecision,
+  JointTest,
+  Look,
+  SpendingKind,
+  Threshold,
+  Verdict,
+} from './decision.ts';
 import type { FactorId, FactorRule, RuleSettings } from './rules.ts';
 
 /** Format tag of a saved study. */
@@ -107,6 +115,30 @@ export interface FitRow {
   mcError: ValueSe | null;
   /** For Monte Carlo rows: whether the vanilla is one of this variant's calibration instruments. */
   calibrated?: boolean;
+  /**
+   * For Monte Carlo rows: standard error of the repriced vol (`modelVol`), price SE divided by the quote's
+   * Black–Scholes vega (Bachelier vega for caplets): first-order delta method, common practice. Absent in older files.
+   */
+  mcVolSe?: number;
+}
+
+/**
+ * One variant's Monte Carlo repricing error beyond noise: over its calibrated vanillas, the largest
+ * max(0, |σ_MC − σ_market| − 2·SE_σ) (decimal vol), the quantity the `repricing` part of the error budget turns into
+ * price with the deal's vega.
+ */
+export interface VariantRepricing {
+  /** Largest implied-vol error beyond two SE over the calibrated vanillas (decimal, e.g. 0.004 = 0.4 vol points). */
+  volExcess: number;
+  /** The vanilla that sets it; null when every vanilla reprices within two SE. */
+  instrument: string | null;
+  /** Number of calibrated vanillas judged. */
+  quotes: number;
+  /**
+   * The same measure on the Hull–White caplets in normal (Bachelier) vol, decimal; null when the variant has none.
+   * Shown only: it is not part of the budget (the study has no deal sensitivity to rate vols to turn it into price).
+   */
+  capletNormalVolExcess: number | null;
 }
 
 /** One model variant of the ladder. */
@@ -208,6 +240,13 @@ export interface StudyResults {
   stepHalving: Record<string, number>;
   /** The raw change of each Δ when the step is halved (same random numbers), with its SE. */
   stepHalvingChange: Record<string, ValueSe>;
+  /**
+   * Per candidate factor, the parts of its error budget (the same at every look; their sum is each decision's
+   * `budget`). Absent in files written before the parts were recorded.
+   */
+  budgetParts?: Record<string, ErrorBudget>;
+  /** Per ladder variant id, its Monte Carlo repricing error beyond noise. Absent in older files. */
+  repricing?: Record<string, VariantRepricing>;
   /** Other snapshots: per date, the verdicts and calibrated parameters. */
   stability: {
     date: string;

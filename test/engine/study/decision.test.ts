@@ -2,6 +2,7 @@ import { describe, it, expect } from 'vitest';
 import seedrandom from 'seedrandom';
 import {
   alphaSpent,
+  budgetTotal,
   lookSchedule,
   decideLook,
   decideSequential,
@@ -174,5 +175,53 @@ describe('extreme schedules', () => {
     const [d] = decideLook([est('a', 100, 1)], 1, 1e-12);
     expect(d!.z).toBeCloseTo(-normQuantile(0.5e-12), 10);
     expect(d!.z).toBeGreaterThan(7);
+  });
+});
+
+describe('repricing part of the budget', () => {
+  // The rule's inequalities (DESIGN step 7) with b = step halving + calibration + repricing + exercise gap
+  // (triangle inequality; common practice): z = Φ⁻¹(1 − α/2) = 1.959964 at α = 0.05, τ = 1.
+  const z = 1.959963984540054;
+  it('adds into budgetTotal; an older budget without it counts it as zero', () => {
+    expect(budgetTotal({ stepHalving: 0.1, calibration: 0.2, repricing: 0.4, exerciseGap: 0.8 })).toBeCloseTo(
+      1.5,
+      14,
+    );
+    expect(budgetTotal({ stepHalving: 0.1, calibration: 0.2, exerciseGap: null })).toBeCloseTo(0.3, 14);
+  });
+  it('flips a keep to undecided once the repricing error is budgeted', () => {
+    // |Δ| − z·SE = 1.5 − 0.196 = 1.304 > τ = 1 with b = 0.1 → keep; the same Δ with a repricing part of 0.3 gives
+    // 1.304 − 0.4 = 0.904 < τ, while |Δ| + z·SE + b = 2.096 > τ: neither side holds → undecided.
+    const base = { factor: 'f', delta: 1.5, se: 0.1 };
+    const [kept] = decideLook(
+      [{ ...base, budget: { stepHalving: 0.05, calibration: 0.05, repricing: 0, exerciseGap: null } }],
+      1,
+      0.05,
+    );
+    expect(kept!.verdict).toBe('keep');
+    const [held] = decideLook(
+      [{ ...base, budget: { stepHalving: 0.05, calibration: 0.05, repricing: 0.3, exerciseGap: null } }],
+      1,
+      0.05,
+    );
+    expect(held!.verdict, `|Δ| − z·SE − b = ${1.5 - z * 0.1 - 0.4} against τ = 1`).toBe('undecided');
+    expect(held!.budget).toBeCloseTo(0.4, 14);
+  });
+  it('enters the joint test, which records the parts it was given', () => {
+    // D = 0.5, SE = 0.1: 0.5 + 0.196 + b < 1 needs b < 0.304; a repricing part of 0.2 on top of 0.15 breaks it.
+    const parts = { stepHalving: 0.1, calibration: 0.05, repricing: 0.2, exerciseGap: null };
+    const j = jointTest({ dropped: ['sv'], difference: 0.5, se: 0.1, budget: parts, tau: 1, alpha: 0.05 });
+    expect(j.outcome).toBe('inconclusive');
+    expect(j.budget).toBeCloseTo(0.35, 14);
+    expect(j.budgetParts).toEqual(parts);
+    const without = jointTest({
+      dropped: ['sv'],
+      difference: 0.5,
+      se: 0.1,
+      budget: { ...parts, repricing: 0 },
+      tau: 1,
+      alpha: 0.05,
+    });
+    expect(without.outcome).toBe('confirmed');
   });
 });
