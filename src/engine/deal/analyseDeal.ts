@@ -117,8 +117,48 @@ function finding(present: boolean, reason: string): Finding {
   return { present, reason };
 }
 
-/** States what the rules need to know about a compiled deal (see the module comment for the replication facts). */
-export function analyseDeal(deal: CompiledDeal): DealAnalysis {
+/**
+ * The remaining life of a deal under way, as the rules should see it: events and exercise rights with no date left
+ * are dropped, and rates already fixed on every remaining date (`known` fixings) and running values with no
+ * observation left are constants. A deal without a past is returned as it is.
+ */
+function remainingLife(deal: CompiledDeal): CompiledDeal {
+  if (!deal.history) return deal;
+  const settled = (n: ProgramNode, times: number[]): boolean => {
+    if (n.op === 'fixing')
+      return n.known !== undefined && times.every((t) => n.known!.some((k) => Math.abs(k.time - t) <= 1e-9));
+    if (n.op === 'running') {
+      const obs = deal.running[n.slot]!.times;
+      return obs !== 'grid' && obs.length === 0;
+    }
+    return false;
+  };
+  const fixed = (p: Program, times: number[]): Program => ({
+    ...p,
+    nodes: p.nodes.map((n): ProgramNode => (settled(n, times) ? { op: 'num', value: 0 } : n)),
+  });
+  return {
+    ...deal,
+    events: deal.events
+      .filter((e) => e.times.length > 0)
+      .map((e) => ({
+        ...e,
+        when: e.when ? fixed(e.when, e.times) : null,
+        pay: e.pay.map((p) => ({ ...p, amount: fixed(p.amount, e.times) })),
+        set: e.set.map((x) => ({ ...x, value: fixed(x.value, e.times) })),
+      })),
+    exercise: deal.exercise
+      .filter((x) => x.times.length > 0)
+      .map((x) => ({ ...x, amount: { ...x.amount, amount: fixed(x.amount.amount, x.times) } })),
+  };
+}
+
+/**
+ * States what the rules need to know about a compiled deal (see the module comment for the replication facts). For a
+ * deal under way only its remaining life counts: what was fixed or paid before the valuation date is no risk.
+ */
+export function analyseDeal(compiled: CompiledDeal): DealAnalysis {
+  const deal = remainingLife(compiled);
   const programs: { p: Program; role: 'when' | 'pay' | 'set' | 'exercise'; ev: number; state?: string }[] =
     [];
   deal.events.forEach((e, i) => {
@@ -290,7 +330,8 @@ export function analyseDeal(deal: CompiledDeal): DealAnalysis {
 
   // Path dependence.
   const pd: string[] = [];
-  if (deal.running.length > 0) pd.push('running minimum, maximum or average');
+  if (deal.running.some((r) => r.times === 'grid' || r.times.length > 0))
+    pd.push('running minimum, maximum or average');
   const stateRead = programs.some(({ p }) =>
     p.nodes.some((n) => n.op === 'state' && randomStates.has(n.name)),
   );
