@@ -118,7 +118,11 @@ export function renderReport(s: SavedStudy): string {
     : joint.outcome === 'nothingDropped'
       ? 'No factor was dropped, so the reduced model is the richest one.'
       : `Joint check of the reduced model (without ${joint.dropped.map(label).join(', ')}) against the richest: ` +
-        `difference ${fmt(joint.difference)} ${esc(ccy)} ± ${fmt(joint.z * joint.se)} (z·SE), budget ${fmt(joint.budget)}: ` +
+        `difference ${fmt(joint.difference)} ${esc(ccy)} ± ${fmt(joint.z * joint.se)} (z·SE), budget ${fmt(joint.budget)}${
+          joint.budgetParts
+            ? ` (step halving ${fmt(joint.budgetParts.stepHalving, 3)}, calibration ${fmt(joint.budgetParts.calibration, 3)}, repricing ${fmt(joint.budgetParts.repricing ?? null, 3)}${joint.budgetParts.exerciseGap === null ? '' : `, exercise gap ${fmt(joint.budgetParts.exerciseGap, 3)}`})`
+            : ''
+        }: ` +
         `<strong>${esc(joint.outcome)}</strong>.`;
   sec.push(`<section class="answer"><h2 style="border:0;margin-top:0">Which stochastic factors does this deal need?</h2>
 <p class="big">${esc(answerSentence(s))}</p>
@@ -258,6 +262,31 @@ ${table(
         judged(f as never),
       ]),
   );
+  const rep = s.results.repricing;
+  const repricingTable = rep
+    ? `<p class="muted">In implied vol: each variant's largest |σ<sub>MC</sub> − σ<sub>market</sub>| − 2·SE<sub>σ</sub> over its calibrated vanillas (zero when all reprice within two SE), the quantity the repricing part of the error budget turns into price with the deal's vega. Caplets are judged the same way in normal vol but stay out of the budget (the study has no deal sensitivity to rate vols).</p>` +
+      table(
+        [
+          'Variant',
+          'Vanillas judged',
+          'Vol error beyond 2 SE (vol bp)',
+          'Set by',
+          'Caplets: normal vol beyond 2 SE (bp)',
+        ],
+        s.ladder
+          .filter((v) => rep[v.id])
+          .map((v) => {
+            const x = rep[v.id]!;
+            return [
+              esc(v.label),
+              String(x.quotes),
+              fmt(x.volExcess * 1e4, 3),
+              esc(x.instrument ?? '—'),
+              x.capletNormalVolExcess === null ? '—' : fmt(x.capletNormalVolExcess * 1e4, 3),
+            ];
+          }),
+      )
+    : '';
   sec.push(`<h2>Calibration fit</h2>
 ${table(['Variant', 'Characteristic function', 'RMSE (vol bp)', 'Max error (vol bp)', 'Time (s)', 'Feller ratio 2κθ/σ²'], fitRows)}
 ${fitPlots}
@@ -266,6 +295,7 @@ ${fitPlots}
 ${
   mcSummary.length
     ? table(['Variant', 'Instruments fitted', 'Within 3 SE', 'Worst |error| / SE'], mcSummary) +
+      repricingTable +
       `<details><summary>Every repriced vanilla</summary>${table(['Variant', 'Instrument', 'MC − market', 'SE', 'Judgement'], mcRows)}</details>`
     : '<p class="muted">No Monte Carlo repricing was stored.</p>'
 }`);
@@ -326,20 +356,44 @@ ${intervalChart({
   })),
 })}
 ${table(
-  ['Factor', 'Δ', 'SE', 'z', 'Budget b', 'of which step halving', 'change on the halved grid ± SE'],
+  [
+    'Factor',
+    'Δ',
+    'SE',
+    'z',
+    'Budget b',
+    'of which step halving',
+    'calibration',
+    'repricing',
+    'exercise gap',
+    'change on the halved grid ± SE',
+  ],
   withD.map((v) => {
     const c = s.results.stepHalvingChange?.[v.factor];
+    const parts = s.results.budgetParts?.[v.factor];
     return [
       esc(label(v.factor)),
       fmt(v.decision!.delta),
       fmt(v.decision!.se, 3),
       fmt(v.decision!.z, 4),
       fmt(v.decision!.budget, 3),
-      fmt(s.results.stepHalving[v.factor] ?? null, 3),
+      fmt(parts?.stepHalving ?? s.results.stepHalving[v.factor] ?? null, 3),
+      fmt(parts?.calibration ?? null, 3),
+      parts ? fmt(parts.repricing ?? null, 3) : '—',
+      parts ? (parts.exerciseGap === null ? 'n/a' : fmt(parts.exerciseGap, 3)) : '—',
       c ? `${fmt(c.value, 3)} ± ${fmt(c.se, 3)}` : '—',
     ];
   }),
-)}`);
+)}
+<p class="muted">The budget b adds what Monte Carlo noise does not cover, for the richest variant and the variant without the factor:
+<strong>step halving</strong>, the change of Δ when every time step is cut in two on the same random numbers, beyond two of its
+own standard errors; <strong>calibration</strong>, |deal vega| times each variant's largest analytic vol fit error;
+<strong>repricing</strong>, |deal vega| times each variant's largest error when it reprices its own calibrated vanillas on the
+study's paths, in implied vol beyond two standard errors (SE of the vol = price SE / Black–Scholes vega), so a simulated
+model that misses its instruments by more than its analytic fit says (an approximate characteristic function, a scheme
+bias at the quotes) widens the interval; <strong>exercise gap</strong>, the gap between the exercise policy's value and its
+dual bound. The parts overlap where a variant's simulated error is its analytic fit error seen again: adding them is
+conservative.${s.results.budgetParts ? '' : ' This study was written before the parts were recorded: only the step-halving part is shown.'}</p>`);
 
   // 7. Attribution
   if (s.results.shapley.length)

@@ -89,6 +89,12 @@ const threshold = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('bidOffer'), fraction: num.positive(), width: num.positive() }),
 ]);
 const factorId = z.enum(['stochVol', 'domesticRate', 'foreignRate']);
+const budgetParts = z.object({
+  stepHalving: num.nonnegative(),
+  calibration: num.nonnegative(),
+  repricing: num.nonnegative().optional(),
+  exerciseGap: num.nonnegative().nullable(),
+});
 
 /** Schema of the study settings (also used to validate settings given on the command line or by the app). */
 export const settingsSchema = z.object({
@@ -171,6 +177,19 @@ const studySchema = z.object({
     looks: z.array(z.looseObject({ paths: z.number().int().positive() })).min(1),
     prices: z.array(valueSe),
     tau: num.positive(),
+    // Recorded since the repricing part of the budget exists; files written before it load without them.
+    budgetParts: z.record(z.string(), budgetParts).optional(),
+    repricing: z
+      .record(
+        z.string(),
+        z.object({
+          volExcess: num.nonnegative(),
+          instrument: z.string().nullable(),
+          quotes: z.number().int().nonnegative(),
+          capletNormalVolExcess: num.nonnegative().nullable(),
+        }),
+      )
+      .optional(),
   }),
   verdicts: z.array(verdict),
   recommended: z.object({ factors: z.array(factorId), variant: z.string(), summary: z.string() }),

@@ -21,6 +21,11 @@ export interface VerifyResult {
   seconds: number;
 }
 
+/** Whether a study was written before its budget recorded the repricing part (and its parts at all). */
+export function predatesRepricing(s: SavedStudy): boolean {
+  return s.results.budgetParts === undefined;
+}
+
 function show(v: unknown): string {
   const s = JSON.stringify(v);
   return s === undefined ? String(v) : s.length > 120 ? s.slice(0, 117) + '...' : s;
@@ -51,6 +56,10 @@ export async function verifyStudy(saved: SavedStudy, opts: RunStudyOptions = {})
       message: `the re-run differs from the saved study first at ${d.field}: saved ${show(d.a)}, re-run ${show(d.b)}${
         saved.tool.version !== again.tool.version
           ? ` (saved by version ${saved.tool.version}, re-run by ${again.tool.version})`
+          : ''
+      }${
+        predatesRepricing(saved) && !predatesRepricing(again)
+          ? '; the saved study predates the repricing part of the error budget (each variant’s Monte Carlo repricing error), which this version adds, so budgets and verdicts can differ'
           : ''
       }`,
       seconds,

@@ -423,7 +423,13 @@ const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stal
                     {num(d.delta, 4)} ± {num(d.z * d.se, 3)} {ccy}
                   </dd>
                   <dt>budget b</dt>
-                  <dd>{num(d.budget, 3)}</dd>
+                  <dd data-testid={`budget-${v.factor}`}>
+                    {num(d.budget, 3)}
+                    {((p) =>
+                      p
+                        ? ` = step halving ${num(p.stepHalving, 2)} + calibration ${num(p.calibration, 2)} + repricing ${num(p.repricing ?? 0, 2)}${p.exerciseGap === null ? '' : ` + exercise gap ${num(p.exerciseGap, 2)}`}`
+                        : '')(r.budgetParts?.[v.factor])}
+                  </dd>
                   <dt>decided at</dt>
                   <dd>
                     {v.decidedAtLook !== null

@@ -8,6 +8,10 @@ import {
   studyHash,
 } from '../../../src/engine/study/savedStudy.ts';
 import { diffStudies } from '../../../src/engine/study/diff.ts';
+import { verifyStudy } from '../../../src/engine/study/verify.ts';
+import { runStudy, DEFAULT_SETTINGS } from '../../../src/engine/study/study.ts';
+import type { SavedStudy } from '../../../src/engine/study/types.ts';
+import { readFileSync } from 'node:fs';
 import { fixtureStudy } from './studyFixture.ts';
 
 const clone = <T>(x: T): T => JSON.parse(JSON.stringify(x)) as T;
@@ -72,5 +76,66 @@ describe('diffStudies', () => {
     expect(d.settings.map((c) => c.field)).toEqual(['settings.paths']);
     expect(d.results.find((c) => c.field === 'results.prices[0].value')?.change).toBeCloseTo(0.25, 12);
     expect(d.verdicts).toEqual([{ factor: 'domesticRate', a: 'undecided', b: 'drop' }]);
+  });
+});
+
+describe('studies written before the budget recorded its parts', () => {
+  const root = new URL('../../../', import.meta.url);
+  const read = (p: string) => JSON.parse(readFileSync(new URL(p, root), 'utf8'));
+  /** The same study as an older version wrote it: no budget parts, no repricing, no vol SE on the fit rows. */
+  const asOlder = (s: SavedStudy): SavedStudy => {
+    const o = clone(s) as SavedStudy & { results: Record<string, unknown> };
+    delete o.results.budgetParts;
+    delete o.results.repricing;
+    if (o.results.joint) delete (o.results.joint as { budgetParts?: unknown }).budgetParts;
+    for (const v of o.ladder) for (const f of v.calibration.fit) delete f.mcVolSe;
+    const { hash: _h, ...rest } = o;
+    return sealStudy(rest);
+  };
+  it('load, keep their hash and compare with a newer study', () => {
+    const old = fixtureStudy();
+    expect(old.results.budgetParts).toBeUndefined();
+    const back = parseStudyFile(JSON.parse(JSON.stringify(old)));
+    expect(checkStudyHash(back).ok).toBe(true);
+    const newer = clone(old);
+    newer.results.budgetParts = {
+      domesticRate: { stepHalving: 0, calibration: 0.01, repricing: 0.02, exerciseGap: null },
+    };
+    const d = diffStudies(old, sealStudy(newer));
+    expect(d.results.map((c) => c.field)).toEqual(['results.budgetParts']);
+  });
+  it('a newer file with a negative budget part is refused, naming the field', () => {
+    const s = clone(fixtureStudy());
+    s.results.budgetParts = {
+      domesticRate: { stepHalving: 0, calibration: 0, repricing: -1, exerciseGap: null },
+    };
+    expect(() => parseStudyFile(s)).toThrow(/study\.results\.budgetParts\.domesticRate\.repricing/);
+  });
+  it('verify: a new study re-runs bit-identically; the older form of it is unedited and its difference explained', async () => {
+    const input = {
+      deal: read('samples/deals/european-call.json'),
+      markets: [read('samples/market/demo-market.json')],
+      settings: {
+        ...DEFAULT_SETTINGS,
+        paths: 8192,
+        firstPaths: 4096,
+        greeks: null,
+        sweeps: null,
+        localVol: false,
+        auxiliaryFraction: 0.5,
+        extraCandidates: ['domesticRate' as const],
+      },
+    };
+    const s = await runStudy(input);
+    expect(s.results.budgetParts?.domesticRate).toBeDefined();
+    const same = await verifyStudy(s);
+    expect(same.ok, same.message).toBe(true);
+    const old = asOlder(s);
+    expect(parseStudyFile(JSON.parse(JSON.stringify(old))).results.budgetParts).toBeUndefined();
+    const r = await verifyStudy(old);
+    expect(r.edited).toBe(false);
+    expect(r.ok).toBe(false);
+    expect(r.firstDifference).not.toBeNull();
+    expect(r.message).toMatch(/predates the repricing part of the error budget/);
   });
 });
