@@ -5,8 +5,10 @@
  */
 import { useContext, useEffect, useId, useMemo, useRef, useState } from 'react';
 import type {
+  CompiledHistory,
   DealInput,
   EventInput,
+  HistoryNeed,
   PaymentInput,
   ScheduleInput,
   Underlying,
@@ -521,6 +523,14 @@ export function DealScreen() {
           Add schedule
         </button>
       </section>
+
+      <PastFixingsPanel
+        deal={deal}
+        needs={review?.historyNeeds}
+        past={review?.compiled?.history}
+        update={update}
+        mark={mark}
+      />
 
       <section className="panel">
         <h2>Events</h2>
@@ -1103,5 +1113,162 @@ function DealSource(props: { deal: DealInput; onApply(d: DealInput): void }) {
         </div>
       )}
     </details>
+  );
+}
+
+type HistorySection = 'fixings' | 'rates';
+
+/** One row of the past-fixings table: a value the deal needs, or one the file gives that nothing reads. */
+interface PastRow {
+  section: HistorySection;
+  name: string;
+  date: string;
+  field: string;
+  /** What reads it; null when the file gives it but nothing needs it. */
+  neededBy: string | null;
+}
+
+/** The rows to show: every needed value (from the engine check) and every value the file gives, by date. */
+export function pastFixingRows(deal: DealInput, needs: HistoryNeed[] | undefined): PastRow[] {
+  const rows: PastRow[] = (needs ?? []).map((n) => ({
+    section: n.kind === 'fixing' ? 'fixings' : 'rates',
+    name: n.name,
+    date: n.date,
+    field: n.field,
+    neededBy: n.neededBy,
+  }));
+  const seen = new Set(rows.map((r) => r.field));
+  for (const section of ['fixings', 'rates'] as const)
+    for (const [name, byDate] of Object.entries(deal.history?.[section] ?? {}))
+      for (const date of Object.keys(byDate ?? {})) {
+        const field = `deal.history.${section}.${name}["${date}"]`;
+        if (!seen.has(field)) rows.push({ section, name, date, field, neededBy: null });
+      }
+  return rows.sort(
+    (a, b) =>
+      a.date.localeCompare(b.date) || a.section.localeCompare(b.section) || a.name.localeCompare(b.name),
+  );
+}
+
+/**
+ * Past fixings of a deal under way: one row per past date that needs a level (or a fixed rate), with the engine's
+ * message at the field; shown only when the deal has a date or a period before its valuation date (or the file
+ * gives past values). Values typed are kept as typed until they are valid numbers.
+ */
+export function PastFixingsPanel(props: {
+  deal: DealInput;
+  needs: HistoryNeed[] | undefined;
+  past: CompiledHistory | undefined;
+  update(f: Mutator): void;
+  mark(p: string): string;
+}) {
+  const { deal, update, mark } = props;
+  const rows = pastFixingRows(deal, props.needs);
+  if (rows.length === 0 && props.needs === undefined) return null;
+  const missing = (props.needs ?? []).filter((n) => !n.given).length;
+  const setValue = (r: PastRow, v: number): void =>
+    update((d) => {
+      const h = (d.history ??= {});
+      const sec = (h[r.section] ??= {});
+      (sec[r.name] ??= {})[r.date] = v;
+    });
+  const remove = (r: PastRow): void =>
+    update((d) => {
+      const sec = d.history?.[r.section];
+      if (!sec?.[r.name]) return;
+      delete sec[r.name]![r.date];
+      if (Object.keys(sec[r.name]!).length === 0) delete sec[r.name];
+      if (Object.keys(sec).length === 0) delete d.history![r.section];
+      if (Object.keys(d.history!).length === 0) delete d.history;
+    });
+  const valueOf = (r: PastRow): number | undefined => deal.history?.[r.section]?.[r.name]?.[r.date];
+  return (
+    <section className="panel past-fixings" data-testid="past-fixings">
+      <h2>Past fixings</h2>
+      <p className="hint">
+        This deal began before its valuation date{deal.valuationDate ? ` (${deal.valuationDate})` : ''}. Give
+        the level observed on each past date below (rates as a simple rate per year, fixed on the day their
+        period starts). The past is run once from these values: state, running lowest, highest and average,
+        and the first remaining accrual come out of it; coupons already paid are not part of the value.
+      </p>
+      <p className={missing > 0 ? 'msg-error' : 'ok'} data-testid="past-fixings-status">
+        {props.needs === undefined
+          ? 'The dates needed are listed once the rest of the deal checks without errors.'
+          : missing > 0
+            ? `${missing} past value${missing > 1 ? 's' : ''} still needed.`
+            : 'Every past value the deal needs is given.'}
+      </p>
+      {rows.length > 0 && (
+        <table className="data">
+          <thead>
+            <tr>
+              <th>Date</th>
+              <th>Underlying or rate</th>
+              <th>Needed by</th>
+              <th>Value</th>
+              <th />
+            </tr>
+          </thead>
+          <tbody>
+            {rows.map((r) => (
+              <tr key={r.field} data-past-field={r.field}>
+                <td>{r.date}</td>
+                <td>{r.section === 'fixings' ? r.name : `${r.name} rate`}</td>
+                <td>{r.neededBy ?? <span className="hint">nothing reads it</span>}</td>
+                <td>
+                  <NumberField
+                    label={
+                      r.section === 'fixings' ? `${r.name} on ${r.date}` : `${r.name} rate fixed ${r.date}`
+                    }
+                    path={mark(r.field)}
+                    value={valueOf(r)}
+                    scale={r.section === 'rates' ? 100 : 1}
+                    suffix={r.section === 'rates' ? '%' : undefined}
+                    rule={r.section === 'fixings' ? { above: 0 } : {}}
+                    compact
+                    onCommit={(v) => setValue(r, v)}
+                  />
+                </td>
+                <td>
+                  {valueOf(r) !== undefined && (
+                    <button onClick={() => remove(r)} aria-label={`Remove ${r.field}`}>
+                      Remove
+                    </button>
+                  )}
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      )}
+      {props.past && props.past.payments.length > 0 && (
+        <>
+          <h3>Paid before the valuation date (not part of the value)</h3>
+          <ul className="tight" data-testid="past-payments">
+            {props.past.payments.map((p, k) => (
+              <li key={k}>
+                {p.date} {p.event}: {p.cash.toLocaleString('en-GB', { maximumFractionDigits: 2 })}{' '}
+                {p.currency}
+              </li>
+            ))}
+          </ul>
+        </>
+      )}
+      {props.past && props.past.ignoredExercise.length > 0 && (
+        <p className="hint">
+          Exercise dates already past (not taken):{' '}
+          {props.past.ignoredExercise.map((x) => `${x.label} ${x.date}`).join(', ')}.
+        </p>
+      )}
+      {props.past && Object.keys(props.past.state).length > 0 && (
+        <p className="hint" data-testid="past-state">
+          State after the past:{' '}
+          {Object.entries(props.past.state)
+            .map(([k, v]) => `${k} = ${v}`)
+            .join(', ')}
+          .
+        </p>
+      )}
+    </section>
   );
 }
