@@ -13,11 +13,11 @@ import { makeCurve } from '../src/engine/market/curve.ts';
 import {
   calibrateHeston,
   calibrateHullWhite,
-  calibrateLadder,
   gridQuotes,
   hestonModelPrices,
   refitHestonUnderRates,
 } from '../src/engine/calibration/index.ts';
+import { calibrateLadder, snapshotLadderBasis } from '../src/engine/study/ladderCalibration.ts';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 
@@ -66,9 +66,13 @@ export async function run(): Promise<void> {
   console.log(report('Hull–White fit, 10 caplets', hw, baseline));
 
   const tl = performance.now();
-  const L = calibrateLadder(snapshot, {
-    equities: ['ALDR', 'BRIX', 'KESO'],
-    factors: { stochVol: true, domRate: true, forRate: true },
+  const L = calibrateLadder({
+    snapshot,
+    analysis: snapshotLadderBasis(snapshot, { equities: ['ALDR', 'BRIX', 'KESO'] }),
+    candidates: ['stochVol', 'domesticRate', 'foreignRate'],
+    required: [],
+    mode: 'fair',
+    scheme: 'qe',
   });
   const ladder = (performance.now() - tl) / 1000;
   console.log(

@@ -138,3 +138,96 @@ export function prepareCosSlice(o: {
     },
   };
 }
+
+/** Call prices of a slice on an explicit range with as many terms as the characteristic function needs. */
+export interface AdaptiveCosSlice {
+  /** Call prices (discounted) for the slice's strikes. */
+  prices: number[];
+  /** Cosine terms used. */
+  terms: number;
+  /** Whether the term bound fell below the tolerance before `maxTerms` (or the function left its valid range). */
+  converged: boolean;
+}
+
+/**
+ * COS call prices on the range ln(S_T/F) ∈ [lo, lo + width] (Fang & Oosterlee 2008, eq. (19) with the put
+ * coefficients of eqs. (22)–(23), calls by parity) with the number of terms chosen from the characteristic function:
+ * term k contributes at most df·K_max·(2/width)·|φ(u_k)|·|ψ_k − χ_k| ≤ 6·df·K_max·|φ(u_k)|/(kπ) (|ψ_k|, |χ_k| ≤ 1/ω_k
+ * + 1/(1 + ω_k²) on a put coefficient), and the series stops once that bound is below tol/5 for 4 consecutive k
+ * (common practice), or where |φ| grows again (an approximate characteristic function outside its range, as in
+ * {@link prepareCosSlice}). The range is the caller's: the calibration's check of its fixed-range slices takes it
+ * from the fitted model's own cumulants. Per strike, cos/sin(ω_k(c − a)) come from one rotation recurrence.
+ */
+export function cosCallPricesAdaptive(o: {
+  logChf: LogCharFn;
+  forward: number;
+  df: number;
+  strikes: readonly number[];
+  lo: number;
+  width: number;
+  /** Absolute price tolerance (discounted, currency units). */
+  tol: number;
+  /** Cap on the number of terms (default 16384). */
+  maxTerms?: number;
+}): AdaptiveCosSlice {
+  const { logChf, forward: F, df, strikes, lo, width, tol } = o;
+  const maxTerms = o.maxTerms ?? 16384;
+  const kMax = Math.max(...strikes);
+  const w = Math.PI / width;
+  let A = new Float64Array(256);
+  const out = new Float64Array(2);
+  let n = 0;
+  let quiet = 0;
+  let converged = false;
+  let prevMag = Infinity;
+  const bound = (6 * df * kMax) / Math.PI;
+  while (n < maxTerms) {
+    const u = n * w;
+    logChf(u, out);
+    const mag = exp(out[0]!);
+    if (n > 0 && (mag > 1 + 1e-9 || (mag > prevMag * (1 + 1e-9) && mag < 0.5))) {
+      converged = true;
+      break;
+    }
+    prevMag = mag;
+    if (n >= A.length) {
+      const g = new Float64Array(2 * A.length);
+      g.set(A);
+      A = g;
+    }
+    // (2/width) Re[φ(u_k) e^{−iu_k lo}], halved at k = 0
+    A[n] = (2 / width) * mag * cos(out[1]! - u * lo) * (n === 0 ? 0.5 : 1);
+    n++;
+    if (n > 1) {
+      quiet = (bound * mag) / (n - 1) < tol / 5 ? quiet + 1 : 0;
+      if (quiet >= 4) {
+        converged = true;
+        break;
+      }
+    }
+  }
+  const prices = strikes.map((K) => {
+    // Put on [a, 0] in y = ln(S_T/K): a = ln(F/K) + lo, payoff K(1 − e^y).
+    const a = log(F / K) + lo;
+    if (a >= 0) return df * (F - K) > 0 ? df * (F - K) : 0;
+    const ea = exp(a);
+    const th = -w * a;
+    const ct = cos(th);
+    const st = sin(th);
+    let ck = 1;
+    let sk = 0;
+    let put = A[0]! * (-a - (1 - ea));
+    for (let k = 1; k < n; k++) {
+      const cn = ck * ct - sk * st;
+      sk = sk * ct + ck * st;
+      ck = cn;
+      const wk = k * w;
+      // ψ_k = sin(ω(0 − a))/ω, χ_k = [cos(ω(0 − a)) − e^a + ω sin(ω(0 − a))]/(1 + ω²)  (eqs. (22)–(23))
+      const psi = sk / wk;
+      const chi = (ck - ea + wk * sk) / (1 + wk * wk);
+      put += A[k]! * (psi - chi);
+    }
+    return Math.max(df * K * put, 0) + df * (F - K);
+  });
+  return { prices, terms: n, converged };
+}

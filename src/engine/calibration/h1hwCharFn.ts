@@ -17,6 +17,7 @@ import type { LogCharFn } from './cosPricer.ts';
 import { hestonLogChf } from './hestonCharFn.ts';
 import { hwB, hwSigmaAt, integratePieces } from './hullWhiteBondVol.ts';
 import { exp, log, pow, sin } from '../math/detMath.ts';
+import { hestonCumulants } from '../models/hestonCos.ts';
 
 /** ln Γ(x) for x > 0 by the Lanczos approximation (g = 7, n = 9; C. Lanczos, SIAM J. Numer. Anal. B1, 1964). */
 export function logGamma(x: number): number {
@@ -115,4 +116,18 @@ export function h1hwLogChf(p: HestonParams, expiry: number, rates: H1HwRates): L
     out[0] = out[0]! - 0.5 * u * u * extra;
     out[1] = out[1]! - 0.5 * u * extra;
   };
+}
+
+/**
+ * Cumulants c₁, c₂, c₄ of ln(S_T/F(0,T)) under H1-HW: those of Heston (models layer, {@link hestonCumulants}) plus
+ * the Gaussian part of ln φ_H1 = ln φ_Heston − ½(u² + iu)Σ²(T), which adds −½Σ² to c₁, Σ² to c₂ and nothing to c₄.
+ */
+export function h1hwCumulants(
+  p: HestonParams,
+  T: number,
+  rates: H1HwRates,
+): { c1: number; c2: number; c4: number } {
+  const h = hestonCumulants(p, T);
+  const extra = h1hwExtraVariance(p, T, rates);
+  return { c1: h.c1 - 0.5 * extra, c2: h.c2 + extra, c4: h.c4 };
 }

@@ -8,9 +8,15 @@
 import type { DiscountCurve, EquityQuote } from '../market/types.ts';
 import type { HestonParams } from '../simulation/types.ts';
 import { EngineError, issue, throwIfErrors, type FieldIssue } from '../errors.ts';
-import { prepareCosSlice, type LogCharFn, type PreparedCosSlice } from './cosPricer.ts';
+import {
+  cosCallPricesAdaptive,
+  prepareCosSlice,
+  type LogCharFn,
+  type PreparedCosSlice,
+} from './cosPricer.ts';
 import { hestonLogChf } from './hestonCharFn.ts';
-import { h1hwLogChf, sqrtVarianceTable, type H1HwRates } from './h1hwCharFn.ts';
+import { h1hwCumulants, h1hwLogChf, sqrtVarianceTable, type H1HwRates } from './h1hwCharFn.ts';
+import { defaultTruncationL, hestonCumulants } from '../models/hestonCos.ts';
 import { blackImpliedVol, blackPrice } from './blackFormulas.ts';
 import { fitLeastSquares, type FitParameter, type FitReport } from './levenbergMarquardt.ts';
 import { gridArbitrageIssues, gridQuotes, type VolQuote } from './volGrid.ts';
@@ -75,9 +81,43 @@ export interface HestonCalibrationInput {
   targetShift?: number[];
 }
 
+/**
+ * Which pricer produced a fit's residuals, and the check of the fast pricer against the fitted model's own range.
+ * The fast pricer's COS slices have truncation ranges fixed from the market vols (prepared once for every
+ * evaluation); at the fitted point the quotes are repriced on a range from the model's cumulants with as many terms
+ * as its characteristic function needs. If the two disagree by more than `toleranceVolPoints` on any quote, the fit
+ * is rerun from the found point on slices re-prepared on the model's range (`residualPricer: 'model-range'`).
+ */
+export interface HestonPricerCheck {
+  /** COS slices that produced the residuals and rows: ranges from the market vols, or from the fitted model. */
+  residualPricer: 'market-range' | 'model-range';
+  /** max over quotes |fast − check|/vega at the first fit, in vol points (quotes above the price floor only). */
+  disagreementVolPoints: number;
+  /** The same at the final point, between the pricer of the residuals and a fresh model-range check. */
+  finalDisagreementVolPoints: number;
+  /** Threshold of the check, vol points. */
+  toleranceVolPoints: number;
+  /** Whether the fit was rerun on model-range slices (at most twice, each from the point found). */
+  refitted: boolean;
+}
+
+/**
+ * Thresholds of the pricer check. A quote counts as a disagreement when the two prices differ both by more than
+ * {@link PRICER_CHECK_PRICE} × df·F and by more than 0.001 vol points (1e-5 in vol, price difference over the quote's
+ * vega). 0.001 vol points is 1/500 of the default fit tolerance and below the three decimals of vol points that fit
+ * reports print; the price floor, one hundredth of a basis point of the forward, keeps the fast pricer's numerical
+ * noise on far wings of tiny vega out of the check (5e-9·F, 0.0011 vol points, on the Fang–Oosterlee grid's 0.25-year
+ * 130 % call), while a range too narrow for the model's tails misprices by 1e-4 to 1e-3 × F (Andersen's Case I grid).
+ */
+export const PRICER_CHECK_VOL_POINTS = 1e-3;
+/** Price floor of the pricer check, in units of df·F (see {@link PRICER_CHECK_VOL_POINTS}). */
+export const PRICER_CHECK_PRICE = 1e-6;
+
 export interface HestonCalibration {
   params: HestonParams;
   fit: FitReport;
+  /** Pricer of the residuals and its check against the fitted model's own truncation range. */
+  pricer: HestonPricerCheck;
   rows: VanillaFitRow[];
   rmseVolPoints: number;
   maxAbsVolPoints: number;
@@ -103,10 +143,16 @@ function slices(quotes: VolQuote[]): { expiry: number; idx: number[] }[] {
   return [...map.entries()].sort((a, b) => a[0] - b[0]).map(([expiry, idx]) => ({ expiry, idx }));
 }
 
-const prepared = new WeakMap<
-  readonly VolQuote[],
-  Map<string, { expiry: number; idx: number[]; lo: number; width: number; slice: PreparedCosSlice }[]>
->();
+/** One expiry's quotes with their prepared COS slice (range [lo, lo + width] in ln(S_T/F)). */
+interface SliceOfQuotes {
+  expiry: number;
+  idx: number[];
+  lo: number;
+  width: number;
+  slice: PreparedCosSlice;
+}
+
+const prepared = new WeakMap<readonly VolQuote[], Map<string, SliceOfQuotes[]>>();
 
 /** Slices of the quotes with their COS coefficients, prepared once per quote set and number of terms. */
 function preparedSlices(quotes: VolQuote[], terms: number) {
@@ -154,11 +200,16 @@ export function hestonModelPrices(
   quotes: VolQuote[],
   options: { rates?: H1HwRates; terms?: number } = {},
 ): number[] {
+  return pricesOn(p, quotes, preparedSlices(quotes, options.terms ?? 192), options.rates);
+}
+
+/** Model prices (out-of-the-money side) of the quotes on the given prepared slices. */
+function pricesOn(p: HestonParams, quotes: VolQuote[], list: SliceOfQuotes[], rates?: H1HwRates): number[] {
   const out = new Array<number>(quotes.length).fill(NaN);
-  const sqrtV = options.rates ? sqrtVarianceTable(p, Math.max(...quotes.map((q) => q.expiry))) : undefined;
-  for (const s of preparedSlices(quotes, options.terms ?? 192)) {
-    const logChf: LogCharFn = options.rates
-      ? h1hwLogChf(p, s.expiry, { ...options.rates, sqrtV })
+  const sqrtV = rates ? sqrtVarianceTable(p, Math.max(...quotes.map((q) => q.expiry))) : undefined;
+  for (const s of list) {
+    const logChf: LogCharFn = rates
+      ? h1hwLogChf(p, s.expiry, { ...rates, sqrtV })
       : hestonLogChf(p, s.expiry);
     const calls = s.slice.callPrices(logChf);
     s.idx.forEach((i, k) => {
@@ -167,6 +218,81 @@ export function hestonModelPrices(
     });
   }
   return out;
+}
+
+/** The check of a fit's pricer: prices on the model's own ranges, and those ranges with the terms they needed. */
+interface ModelRangeCheck {
+  prices: number[];
+  ranges: { expiry: number; idx: number[]; lo: number; width: number; terms: number }[];
+}
+
+/**
+ * Prices of the quotes on truncation ranges from the model's own cumulants: [c₁ − h, c₁ + h], h = L√(c₂ + √|c₄|)
+ * (Fang & Oosterlee 2008, eq. (49), with the models layer's `defaultTruncationL` at 1e-10 relative), c₁, c₂, c₄ of
+ * Heston (closed-form mean, Richardson-read c₂, c₄) or of H1-HW (plus the Gaussian rate part), and as many cosine
+ * terms as the characteristic function needs for 1e-10 × df·F (`cosCallPricesAdaptive`).
+ */
+function modelRangeCheck(p: HestonParams, quotes: VolQuote[], rates?: H1HwRates): ModelRangeCheck {
+  const out = new Array<number>(quotes.length).fill(NaN);
+  const sqrtV = rates ? sqrtVarianceTable(p, Math.max(...quotes.map((q) => q.expiry))) : undefined;
+  const ranges = slices(quotes).map((s) => {
+    const T = s.expiry;
+    const q0 = quotes[s.idx[0]!]!;
+    const r = rates ? { ...rates, sqrtV } : undefined;
+    const { c1, c2, c4 } = r ? h1hwCumulants(p, T, r) : hestonCumulants(p, T);
+    const half = defaultTruncationL(c2, c4, 1e-10) * Math.sqrt(c2 + Math.sqrt(Math.abs(c4)));
+    const lo = c1 - half;
+    const res = cosCallPricesAdaptive({
+      logChf: r ? h1hwLogChf(p, T, r) : hestonLogChf(p, T),
+      forward: q0.forward,
+      df: q0.df,
+      strikes: s.idx.map((i) => quotes[i]!.strike),
+      lo,
+      width: 2 * half,
+      tol: 1e-10 * q0.df * q0.forward,
+    });
+    s.idx.forEach((i, k) => {
+      const q = quotes[i]!;
+      out[i] = q.isCall ? res.prices[k]! : res.prices[k]! - q.df * (q.forward - q.strike);
+    });
+    return { expiry: T, idx: s.idx, lo, width: 2 * half, terms: res.terms };
+  });
+  return { prices: out, ranges };
+}
+
+/** Slices re-prepared on the check's model ranges, with a quarter more terms than the check needed. */
+function modelRangeSlices(quotes: VolQuote[], check: ModelRangeCheck): SliceOfQuotes[] {
+  return check.ranges.map((r) => {
+    const q0 = quotes[r.idx[0]!]!;
+    return {
+      expiry: r.expiry,
+      idx: r.idx,
+      lo: r.lo,
+      width: r.width,
+      slice: prepareCosSlice({
+        forward: q0.forward,
+        df: q0.df,
+        strikes: r.idx.map((i) => quotes[i]!.strike),
+        lo: r.lo,
+        width: r.width,
+        terms: Math.ceil(1.25 * r.terms) + 8,
+      }),
+    };
+  });
+}
+
+/**
+ * max |a − b|/scale over the quotes whose price difference exceeds {@link PRICER_CHECK_PRICE} × df·F, in vol points
+ * (0 when none does).
+ */
+function disagreementPoints(a: number[], b: number[], scale: number[], quotes: VolQuote[]): number {
+  let worst = 0;
+  for (let i = 0; i < a.length; i++) {
+    const q = quotes[i]!;
+    const diff = Math.abs(a[i]! - b[i]!);
+    if (!(diff <= PRICER_CHECK_PRICE * q.df * q.forward)) worst = Math.max(worst, diff / scale[i]!);
+  }
+  return Number.isFinite(worst) ? worst * 100 : Infinity;
 }
 
 /** Checks the quotes can identify the parameters; throws with the field and the fix otherwise. */
@@ -231,10 +357,10 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
   const target = quotes.map((q, i) => (shift ? blackPriceOf(q, q.vol + shift[i]!) : q.price));
   const vegaFloor = (q: VolQuote) => Math.max(q.vega, 1e-4 * q.df * q.forward * Math.sqrt(q.expiry));
   const scale = quotes.map(vegaFloor);
-  const opts = { rates: input.rates, terms: input.terms };
   const targetVol = quotes.map((q, i) => q.vol + (shift ? shift[i]! : 0));
-  const residuals = (p: Readonly<Record<string, number>>) => {
-    const m = hestonModelPrices(p as unknown as HestonParams, quotes, opts);
+  const fastSlices = preparedSlices(quotes, input.terms ?? 192);
+  const residualsOn = (list: SliceOfQuotes[]) => (p: Readonly<Record<string, number>>) => {
+    const m = pricesOn(p as unknown as HestonParams, quotes, list, input.rates);
     if (input.residuals === 'implied-vol')
       return m.map((x, i) => {
         const q = quotes[i]!;
@@ -245,7 +371,7 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
     return m.map((x, i) => (x - target[i]!) / scale[i]!);
   };
   const starts = input.starts ?? defaultHestonStarts(quotes);
-  const runs = starts.map((s) => {
+  const runFit = (s: HestonParams, list: SliceOfQuotes[]): FitReport => {
     const params: FitParameter[] = HESTON_NAMES.map((n) => ({
       name: n,
       initial: fixed[n] ?? s[n],
@@ -253,10 +379,10 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
       upper: HESTON_BOUNDS[n][1],
       fixed: fixed[n] !== undefined,
     }));
-    const fit = fitLeastSquares(
+    return fitLeastSquares(
       {
         parameters: params,
-        residuals,
+        residuals: residualsOn(list),
         weights: input.weights,
         constraints: [
           {
@@ -268,12 +394,35 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
       },
       { maxEvaluations: input.maxEvaluations ?? 300, costTol: 1e-10 },
     );
-    return { start: s, fit };
-  });
+  };
+  const runs = starts.map((s) => ({ start: s, fit: runFit(s, fastSlices) }));
   runs.sort((a, b) => cost(a.fit) - cost(b.fit));
   const best = runs[0]!;
-  const p = toHeston(best.fit.parameters);
-  const model = hestonModelPrices(p, quotes, opts);
+  let bestFit = best.fit;
+  let p = toHeston(bestFit.parameters);
+  let model = pricesOn(p, quotes, fastSlices, input.rates);
+  // Pricer check: the fast slices' ranges come from the market vols; reprice on the fitted model's own range.
+  const check = modelRangeCheck(p, quotes, input.rates);
+  const first = disagreementPoints(model, check.prices, scale, quotes);
+  const pricer: HestonPricerCheck = {
+    residualPricer: 'market-range',
+    disagreementVolPoints: first,
+    finalDisagreementVolPoints: first,
+    toleranceVolPoints: PRICER_CHECK_VOL_POINTS,
+    refitted: false,
+  };
+  // At most two refits: each from the point found, on slices re-prepared on that point's own ranges.
+  let last = check;
+  for (let round = 0; round < 2 && !(pricer.finalDisagreementVolPoints <= PRICER_CHECK_VOL_POINTS); round++) {
+    const modelSlices = modelRangeSlices(quotes, last);
+    bestFit = runFit(p, modelSlices);
+    p = toHeston(bestFit.parameters);
+    model = pricesOn(p, quotes, modelSlices, input.rates);
+    pricer.residualPricer = 'model-range';
+    pricer.refitted = true;
+    last = modelRangeCheck(p, quotes, input.rates);
+    pricer.finalDisagreementVolPoints = disagreementPoints(model, last.prices, scale, quotes);
+  }
   const rows: VanillaFitRow[] = quotes.map((q, i) => {
     const tvol = shift ? q.vol + shift[i]! : q.vol;
     const mv = blackImpliedVol({ ...q, price: model[i]! });
@@ -303,7 +452,18 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
     const vals = (good.length ? good : [best]).map((r) => r.fit.parameters[n]!);
     spread[n] = { min: Math.min(...vals), max: Math.max(...vals) };
   }
-  const warnings = [...best.fit.warnings];
+  const warnings = [...bestFit.warnings];
+  if (!(pricer.finalDisagreementVolPoints <= PRICER_CHECK_VOL_POINTS))
+    warnings.push(
+      issue(
+        'W_PRICER_RANGE',
+        `${field}.vols`,
+        `the fit's COS pricer must agree with the fitted model's own truncation range within ${PRICER_CHECK_VOL_POINTS} vol points`,
+        Number(pricer.finalDisagreementVolPoints.toPrecision(3)),
+        'the fitted model has tails the quotes do not constrain: check the quotes or fix some parameters',
+        'warning',
+      ),
+    );
   if (rmseVolPoints > tol)
     warnings.push(
       issue(
@@ -318,7 +478,8 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
   const ratio = (2 * p.kappa * p.theta) / (p.sigma * p.sigma);
   return {
     params: p,
-    fit: best.fit,
+    fit: bestFit,
+    pricer,
     rows,
     rmseVolPoints,
     maxAbsVolPoints,
@@ -330,7 +491,7 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
       converged: r.fit.converged,
     })),
     spread,
-    ok: best.fit.converged && rmseVolPoints <= tol,
+    ok: bestFit.converged && rmseVolPoints <= tol,
     warnings,
     seconds: (nowMs() - t0) / 1000,
   };
