@@ -175,6 +175,57 @@ describe('past events are run once at compile time with the evaluator’s rules 
   });
 });
 
+describe('exercise rights and rate periods around the valuation date', () => {
+  it('an exercise date before the valuation date is ignored and listed; later ones remain', () => {
+    // calls: 2026-09-01 (past), 2026-12-01, 2027-03-01, 2027-06-01; valued 2026-11-15
+    const c = compileDeal(
+      base({
+        valuationDate: '2026-11-15',
+        schedules: {
+          calls: { start: '2026-06-01', end: '2027-06-01', every: '3M' },
+          final: { dates: ['2027-06-01'] },
+        },
+        events: [{ label: 'final', on: 'final', pay: { amount: 'perf(ALDR)' } }],
+        exercise: [{ label: 'issuer call', on: 'calls', by: 'issuer', amount: '1' }],
+      }),
+    );
+    expect(c.history!.ignoredExercise).toEqual([{ label: 'issuer call', date: '2026-09-01' }]);
+    expect(c.exercise[0]!.times).toEqual([16 / 365, 106 / 365, 198 / 365]);
+    expect(c.exercise[0]!.pastDates).toBe(1);
+  });
+  it('fixing(C, tau) whose period began before the valuation date reads the rate fixed that day', () => {
+    // paid 2027-03-01 (90 days on): the period [t − 0.25, t] began 91.25 days earlier, nearest day 2026-11-30
+    const d = base({
+      rates: ['DOM'],
+      schedules: { s: { dates: ['2027-03-01'] } },
+      events: [{ label: 'float', on: 's', pay: { amount: 'fixing(DOM, 0.25)' } }],
+      history: { rates: { DOM: { '2026-11-30': 0.04 } } },
+    });
+    const c = compileDeal(d);
+    expect(Array.from(flowsOf(c, [100, 100])[0]!.values)).toEqual([0.04, 0.04]);
+    expect(analyseDeal(c).rateDependent.present).toBe(false);
+    delete d.history;
+    expect(checkDeal(d).issues.map((i) => i.field)).toEqual(['deal.history.rates.DOM["2026-11-30"]']);
+  });
+  it('a swap rate read on a past date and dt on the first date of a past dates schedule are refused at the field', () => {
+    const swap = base({
+      rates: ['DOM'],
+      schedules: { s: { start: '2026-06-01', end: '2027-06-01', every: '3M' } },
+      events: [{ label: 'cms', on: 's', pay: { amount: 'swap_rate(DOM, 2, 1)' } }],
+    });
+    expect(checkDeal(swap).issues.map((i) => [i.code, i.field])).toEqual([
+      ['E_PAST_RATE_NOT_RECORDED', 'deal.events[0].pay.amount'],
+    ]);
+    const accrual = base({
+      schedules: { s: { dates: ['2026-09-01', '2027-03-01'] } },
+      events: [{ label: 'acc', on: 's', pay: { amount: 'dt' } }],
+    });
+    expect(checkDeal(accrual).issues.map((i) => [i.code, i.field])).toEqual([
+      ['E_PAST_NO_PERIOD_START', 'deal.events[0].pay.amount'],
+    ]);
+  });
+});
+
 describe('a call struck at a past fixing is a Black–Scholes call with that strike', () => {
   // Hull, OFOD (8th ed.), BSM chapter worked example: S=42, K=40, T=0.5, r=0.1, q=0, vol=0.2 → 4.76 (from memory);
   // re-computed 4.75942239287 (shared/reference/published.md). Here K = 40 was fixed on 2026-06-01 (past).
