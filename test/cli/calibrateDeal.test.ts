@@ -109,4 +109,47 @@ describe('calibrate --deal prints the ladder the study of that deal simulates', 
     expect(cal.ladder.variants.every((v) => v.spec.hestonScheme === 'euler')).toBe(true);
     expectSameLadder(cal, study);
   }, 30_000);
+
+  it('naive calibration of a floating note: same labelled variants as the study', async () => {
+    const dealFile = path.join(root, 'samples/deals/long-dated-floating-note.json');
+    const cal = await calibrateJson(['--deal', dealFile, '--settings', settingsFile, '--naive']);
+    const study = await runStudy({
+      deal: read(dealFile),
+      markets: [read(MARKET)],
+      settings: { ...DEFAULT_SETTINGS, ...FAST, calibration: 'naive' },
+    });
+    expect(cal.ladder.variants.every((v) => v.role === 'naive' && v.id.endsWith('~naive'))).toBe(true);
+    expectSameLadder(cal, study);
+  }, 30_000);
+
+  it('over a series of dates: the stability paths carry the parameters the study fits on each date', async () => {
+    const dealFile = path.join(root, 'samples/deals/long-dated-floating-note.json');
+    const series = ['2026-11-23', '2026-11-24'].map((d) =>
+      path.join(root, `samples/market/series/${d}.json`),
+    );
+    const io = captureIo();
+    const code = await main(
+      ['calibrate', ...series, '--deal', dealFile, '--settings', settingsFile, '--json'],
+      io,
+    );
+    expect(code, io.errLines.join('\n')).toBe(0);
+    const cal = JSON.parse(io.outLines.join('\n')) as {
+      stability: { dates: string[]; paths: { model: string; parameter: string; values: number[] }[] };
+    };
+    const study = await runStudy({
+      deal: read(dealFile),
+      markets: series.map(read),
+      settings: { ...DEFAULT_SETTINGS, ...FAST },
+    });
+    const st = study.results.stability;
+    expect(cal.stability.dates).toEqual(st.map((x) => x.date));
+    const value = (model: string, parameter: string, i: number) =>
+      cal.stability.paths.find((p) => p.model === model && p.parameter === parameter)!.values[i];
+    st.forEach((day, i) => {
+      for (const [k, v] of Object.entries(day.params['heston ALDR']!))
+        expect(value('heston:ALDR', k, i), `${day.date} heston ${k}`).toBe(v);
+      expect(value('hull-white:DOM', 'a', i), `${day.date} a`).toBe(day.params['hw DOM']!.a);
+      expect(value('hull-white:DOM', 'sigma', i), `${day.date} sigma`).toBe(day.params['hw DOM']!.sigma);
+    });
+  }, 30_000);
 });
