@@ -58,6 +58,7 @@ export const usage = [
   '  --euler              Heston by full-truncation Euler in the variants (QE by default)',
   "  --local-vol          also fit the SVI surface and Dupire local vol per equity (the study's diagnostic)",
   '  --json               print the reports as JSON (format factor-triage/calibration@2)',
+  '  --hw constant        accepted as before; the ladder fits a constant Hull–White σ (piecewise is not offered)',
   '',
   'Without --deal the basis is the snapshot alone: every equity of the snapshot (or each --equity), paid in the',
   "snapshot's domestic currency; the currencies are the domestic one and the equities'; every quoted expiry and",
