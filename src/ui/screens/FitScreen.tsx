@@ -598,8 +598,9 @@ function SeriesStability() {
       <h2>Parameter stability over the {markets.length} market dates</h2>
       <p className="hint">
         Heston per equity ({equities.join(', ') || 'none'}) and Hull–White per currency (
-        {currencies.join(', ') || 'none'}) calibrated on every date, each warm-started from the previous one.
-        Parameters that move while the fit stays good are poorly identified.
+        {currencies.join(', ') || 'none'}) calibrated on every date from the same starts, exactly as a study
+        of that date would calibrate them. Parameters that move while the fit stays good are poorly
+        identified.
       </p>
       <div className="button-row">
         <button
