@@ -280,7 +280,7 @@ ${table(
             return [
               esc(v.label),
               String(x.quotes),
-              fmt(x.volExcess * 1e4, 3),
+              `${fmt(x.volExcess * 1e4, 3)}${x.inBudget === false ? ' (shown only: a naive variant’s miscalibration, which its Δ measures)' : ''}`,
               esc(x.instrument ?? '—'),
               x.capletNormalVolExcess === null ? '—' : fmt(x.capletNormalVolExcess * 1e4, 3),
             ];

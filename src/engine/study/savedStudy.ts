@@ -187,6 +187,7 @@ const studySchema = z.object({
           instrument: z.string().nullable(),
           quotes: z.number().int().nonnegative(),
           capletNormalVolExcess: num.nonnegative().nullable(),
+          inBudget: z.boolean().optional(),
         }),
       )
       .optional(),

@@ -139,6 +139,11 @@ export interface VariantRepricing {
    * Shown only: it is not part of the budget (the study has no deal sensitivity to rate vols to turn it into price).
    */
   capletNormalVolExcess: number | null;
+  /**
+   * Whether `volExcess` enters the budget: false for a naive variant that adds stochastic rates without refitting
+   * (its repricing error is the miscalibration its Δ measures). Absent in older files.
+   */
+  inBudget?: boolean;
 }
 
 /** One model variant of the ladder. */

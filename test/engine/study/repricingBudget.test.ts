@@ -223,7 +223,39 @@ describe('repricing part of the error budget', () => {
     });
     expect(s.results.budgetParts!.stochVol!.repricing).toBeGreaterThan(0);
     const j = s.results.joint!;
-    if (j.budgetParts) expect(Math.abs(j.budget - budgetTotal(j.budgetParts))).toBeLessThan(1e-9);
+    expect(j.budgetParts).toBeDefined();
+    expect(Math.abs(j.budget - budgetTotal(j.budgetParts!))).toBeLessThan(1e-9);
+    // With nothing dropped the reduced model is the richest one: difference, SE and budget are zero.
+    if (j.dropped.length === 0) expect([j.difference, j.se, j.budget]).toEqual([0, 0, 0]);
+    else {
+      const keep = s.ladder.find((v) => v.id === s.recommended.variant)!;
+      const want = perUnitVol * (rep[keep.id]!.volExcess + rep[rich.id]!.volExcess);
+      expect(Math.abs(j.budgetParts!.repricing! - want)).toBeLessThanOrEqual(1e-9 * Math.max(1, want));
+    }
+  });
+
+  it('leaves out of the budget a naive variant whose repricing error is the miscalibration its Δ measures', async () => {
+    // Naive mode keeps the deterministic-rate Black–Scholes vols after adding Hull–White rates, so the BS–HW variant
+    // misprices its ATM vanillas by the rate effect on the forward variance (Rabinovitch 1989): that is Δ itself.
+    const s = await runStudy({
+      deal: european,
+      markets: [hybridMarket()],
+      settings: {
+        ...settings,
+        paths: 16384,
+        firstPaths: 8192,
+        auxiliaryFraction: 0.5,
+        calibration: 'naive',
+        extraCandidates: ['domesticRate'],
+      },
+    });
+    const rep = s.results.repricing!;
+    expect(rep['bs+hw(DOM)~naive']!.inBudget).toBe(false);
+    expect(rep['bs~naive']!.inBudget).toBe(true);
+    const vega = s.results.greeks!.find((g) => g.variant === 'bs+hw(DOM)~naive')!.vega!;
+    const want = Math.abs(vega.value) * 100 * rep['bs~naive']!.volExcess;
+    const got = s.results.budgetParts!.domesticRate!.repricing!;
+    expect(Math.abs(got - want)).toBeLessThanOrEqual(1e-9 * Math.max(1, want));
   });
 
   it('stays bit-identical whatever the worker count and batch completion order', async () => {
