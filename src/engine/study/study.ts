@@ -260,7 +260,7 @@ interface VolError {
  * excess = max(0, |σ_MC − σ_market| − 2·SE_σ). A price outside the no-arbitrage bounds has no implied vol; its error
  * is then read to first order as |mc − market| / vega.
  */
-export function vanillaVolError(
+function vanillaVolError(
   snap: MarketSnapshot,
   q: FairnessVanilla & { market: number; vol: number },
   mc: number,
@@ -291,7 +291,7 @@ export function vanillaVolError(
  * F = (P(0,T₁)/P(0,T₂) − 1)/τ (Brigo & Mercurio 2006, Sec. 1.5; Bachelier 1900 in the form of Jäckel 2017, Sec. 1),
  * vega A √T₁ φ(d), d = (F − K)/(σ_N √T₁); SE and excess as for {@link vanillaVolError}.
  */
-export function capletVolError(
+function capletVolError(
   snap: MarketSnapshot,
   q: { currency: string; expiry: number; tenor: number; strike: number; vol: number; market: number },
   mc: number,
