@@ -279,6 +279,38 @@ describe('Black–Scholes implied volatility', () => {
     expect(worst).toBeLessThan(1e-8);
   });
 
+  it('round-trips over K/S 0.05..20, T from 1 day to 30 years, vol 1 %..300 %, both types, where the price carries the vol', () => {
+    let worst = 0;
+    let count = 0;
+    for (const m of [0.05, 0.1, 0.2, 0.5, 0.9, 0.99, 1, 1.01, 1.1, 2, 5, 10, 20])
+      for (const T of [1 / 365, 1 / 52, 0.25, 1, 10, 30])
+        for (const vol of [0.01, 0.03, 0.1, 0.3, 1, 2, 3])
+          for (const type of ['call', 'put'] as const) {
+            const p = { type, S: 100, K: 100 * m, T, r: 0.03, q: 0.01 };
+            const price = bsPrice({ ...p, vol });
+            const F = 100 * Math.exp(0.02 * T);
+            const df = Math.exp(-0.03 * T);
+            const intrinsic = type === 'call' ? Math.max(df * (F - p.K), 0) : Math.max(df * (p.K - F), 0);
+            const bound = type === 'call' ? 100 * Math.exp(-0.01 * T) : p.K * df;
+            // Skip quotes whose time value is lost in rounding, that underflow, or that sit at the upper bound.
+            if (!(price - intrinsic > 1e-9 * price) || !(price > 1e-280) || !(price < bound)) continue;
+            const iv = bsImpliedVol({ ...p, price });
+            const g = bsGreeks({ ...p, vol });
+            // Attainable accuracy: rounding in the price and the parity conversion over vega, plus 1e-12 relative.
+            const tol = 1e-12 * vol + (1e-14 * Math.max(price, bound - price)) / Math.max(g.vega, 1e-300);
+            const err = Math.abs(iv - vol);
+            if (!(err <= tol))
+              throw new Error(
+                `iv K/S=${m} T=${T} vol=${vol} ${type}: price ${price}, expected ${vol}, computed ${iv}, tol ${tol}`,
+              );
+            // Worst relative error over the quotes whose price pins the vol to better than 1e-9 relative.
+            if (tol < 1e-9 * vol) worst = Math.max(worst, err / vol);
+            count++;
+          }
+    expect(count).toBeGreaterThan(700);
+    expect(worst).toBeLessThan(1e-8);
+  });
+
   it('recovers vols deep in the wings where prices are below 1e-100', () => {
     // K/F = 5, vol 5 %, T = 1: price about 1e-270 (normalised-price form without cancellation, Jäckel 2015 Sec. 2).
     const p = { type: 'call' as const, S: 100, K: 500, T: 1, r: 0, q: 0 };
