@@ -8,6 +8,8 @@ import type { PathBatch } from '../../../src/engine/simulation/types.ts';
 import { bsPrice } from '../../../src/engine/models/blackScholes.ts';
 import { makeTestBatch, meanSe } from './testPaths.ts';
 
+const read = (f: string): DealInput =>
+  JSON.parse(readFileSync(new URL(`../../../samples/deals/${f}`, import.meta.url), 'utf8')) as DealInput;
 const sample = (): DealInput =>
   JSON.parse(
     readFileSync(
@@ -172,6 +174,62 @@ describe('past events are run once at compile time with the evaluator’s rules 
     const a = makeDealEvaluator(seasoned)(batch);
     const b = makeDealEvaluator(f)(batch);
     expect(Array.from(a)).toEqual(Array.from(b));
+  });
+});
+
+describe('the past run at compile time agrees with the evaluator run over the whole life', () => {
+  it('the issued autocallable on paths that share the past = past coupons + the seasoned note discounted', () => {
+    // Second method in the project: the vectorised evaluator runs the issued note (valued 2026-11-23) over paths
+    // whose levels on the four past coupon dates are the seasoned file's fixings on every path and which continue
+    // from 3400 on 2027-12-06. Under a flat rate r (discount e^{−rt}, common practice) its value per path is the
+    // coupons paid before 2027-12-06 discounted, plus e^{−rτ} times the seasoned note's value on the continuation.
+    const issued = compileDeal(read('autocallable-memory.json'));
+    const seasonedDeal = sample();
+    const seasoned = compileDeal(seasonedDeal);
+    const tau = 378 / 365; // 2026-11-23 → 2027-12-06
+    const r = 0.03;
+    const cont = makeTestBatch({
+      nPaths: 2048,
+      times: seasoned.gridTimes,
+      seed: 'shared-past',
+      domestic: 'DOM',
+      rate: r,
+      equities: [{ name: 'ALDR', spot: 3400, vol: 0.25, divYield: 0.02 }],
+    });
+    const n = cont.nPaths;
+    const past = issued.gridTimes.filter((t) => t < tau);
+    const fix = seasonedDeal.history!.fixings!.ALDR!;
+    const pastLevels = Object.keys(fix)
+      .sort()
+      .map((d) => fix[d]!);
+    expect(past.length).toBe(pastLevels.length);
+    const times = Float64Array.from([0, ...past, ...Array.from(cont.times, (s) => tau + s)]);
+    const K = times.length;
+    const eq = new Float64Array(K * n);
+    eq.fill(4200, 0, n);
+    pastLevels.forEach((v, i) => eq.fill(v, (i + 1) * n, (i + 2) * n));
+    eq.set(cont.equity.ALDR!, (past.length + 1) * n);
+    const discount = new Float64Array(K * n);
+    for (let k = 0; k < K; k++) discount.fill(Math.exp(-r * times[k]!), k * n, (k + 1) * n);
+    const whole: PathBatch = {
+      nPaths: n,
+      times,
+      equity: { ALDR: eq },
+      variance: {},
+      fx: {},
+      shortRate: {},
+      discount,
+      bond: () => {
+        throw new Error('no rates in this deal');
+      },
+    };
+    const full = makeDealEvaluator(issued)(whole);
+    const rest = makeDealEvaluator(seasoned)(cont);
+    const pastCash = seasoned.history!.payments.reduce((s, p, i) => s + p.cash * Math.exp(-r * past[i]!), 0);
+    for (let p = 0; p < n; p++) {
+      const expected = pastCash + Math.exp(-r * tau) * rest[p]!;
+      expect(Math.abs(full[p]! - expected), `path ${p}: ${full[p]} vs ${expected}`).toBeLessThan(1e-6);
+    }
   });
 });
 
