@@ -291,7 +291,7 @@ ${table(
 ${table(['Variant', 'Characteristic function', 'RMSE (vol bp)', 'Max error (vol bp)', 'Time (s)', 'Feller ratio 2κθ/σ²'], fitRows)}
 ${fitPlots}
 <h3>Evidence of fairness: each variant reprices its own instruments on the study's paths</h3>
-<p class="muted">Monte Carlo price minus market price of each vanilla, per unit of the underlying, with its standard error. A Black–Scholes variant is fitted only at the ATM forward; its other rows show the smile it does not fit.</p>
+<p class="muted">Monte Carlo price minus market price of each vanilla, per unit of the underlying, with its standard error. A Black–Scholes variant is fitted at one strike per expiry (the ATM forward unless the settings name one); its other rows show the smile it does not fit.</p>
 ${
   mcSummary.length
     ? table(['Variant', 'Instruments fitted', 'Within 3 SE', 'Worst |error| / SE'], mcSummary) +

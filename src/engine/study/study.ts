@@ -215,28 +215,38 @@ function prepare(input: StudyInput): Prepared {
   return { input, settings, markets, marketWarnings, compiled, analysis, candidates, required, rules, tau };
 }
 
-/** Vanillas repriced by Monte Carlo for the evidence of fairness (3 strikes per calibration expiry on the grid). */
+/**
+ * Vanillas repriced by Monte Carlo for the evidence of fairness: 3 strikes (0.9, 1, 1.1 × the forward) per calibration
+ * expiry on the grid, plus the Black–Scholes calibration strike when the settings name one for the equity.
+ * `bsTarget` marks the vanilla a Black–Scholes variant is fitted to at that expiry (the ATM forward by default).
+ */
 function fairnessVanillas(
   snapshot: MarketSnapshot,
   analysis: DealAnalysis,
-): (FairnessVanilla & { market: number; vol: number; atm: boolean })[] {
-  const out: (FairnessVanilla & { market: number; vol: number; atm: boolean })[] = [];
+  bsStrikes: Record<string, number>,
+): (FairnessVanilla & { market: number; vol: number; bsTarget: boolean })[] {
+  const out: (FairnessVanilla & { market: number; vol: number; bsTarget: boolean })[] = [];
   for (const e of analysis.equities) {
     const q = snapshot.equities[e.marketName]!;
     const curve = makeCurve(snapshot.curves[q.currency]!, `market.curves.${q.currency}`);
     const exps = calibrationExpiries(q.vols.expiries, analysis.lastTime).filter(
       (t) => t <= analysis.lastTime + 1e-9,
     );
+    const target = bsStrikes[e.marketName];
     for (const T of exps.slice(-3)) {
       const F = equityForward(q, curve, T);
-      for (const m of [0.9, 1, 1.1]) {
-        const K = F * m;
+      const strikes = [0.9, 1, 1.1].map((m) => ({
+        K: F * m,
+        bsTarget: m === 1 && target === undefined,
+      }));
+      if (target !== undefined) strikes.push({ K: target, bsTarget: true });
+      for (const { K, bsTarget } of strikes) {
         const vol = gridVolAt(q, curve, T, K);
         const isCall = K >= F;
         const r = -log(curve.df(T)) / T;
         const qq = r - log(F / q.spot) / T;
         const market = bsPrice({ type: isCall ? 'call' : 'put', S: q.spot, K, T, r, q: qq, vol });
-        out.push({ equity: e.marketName, expiry: T, strike: K, isCall, market, vol, atm: m === 1 });
+        out.push({ equity: e.marketName, expiry: T, strike: K, isCall, market, vol, bsTarget });
       }
     }
   }
@@ -438,7 +448,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
   const calSeconds = (now() - tCal) / 1000;
   checkAbort();
 
-  const vanillas = fairnessVanillas(snap, analysis);
+  const vanillas = fairnessVanillas(snap, analysis, S.calibrationStrikes);
   // Hull–White caplets fixing within the deal's life are repriced on the study's paths too.
   const caplets = Object.values(ladder.hullWhite)
     .flatMap((h) => h.caplets)
@@ -720,9 +730,8 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           const se = st.se(c);
           const m = vanillaVolError(snap, q, mc, se);
           // A Black–Scholes variant is fitted at one strike per expiry (the ATM forward unless the settings name
-          // an absolute strike, which the repriced vanillas do not carry): only its ATM rows are its own.
-          const calibrated =
-            dyn(q.equity) !== 'bs' || (q.atm && S.calibrationStrikes[q.equity] === undefined);
+          // an absolute strike): only that vanilla is its own.
+          const calibrated = dyn(q.equity) !== 'bs' || q.bsTarget;
           const instrument = `${q.equity} ${q.isCall ? 'call' : 'put'} K=${Math.round(q.strike * 100) / 100} T=${q.expiry} (Monte Carlo reprice)`;
           if (calibrated) {
             rep.quotes++;

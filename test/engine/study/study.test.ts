@@ -117,6 +117,22 @@ describe('European call: closed-form checks of the study', () => {
         3 * f.mcError!.se + 1e-9,
       );
     }
+    // The Black–Scholes variants are fitted at K = 4200 only (exactly, as above): that vanilla is repriced at each
+    // expiry and is their one calibrated row there; their exact schemes reprice it within 3 SE.
+    for (const id of ['bs', 'bs+hw(DOM)']) {
+      const own = s.ladder
+        .find((x) => x.id === id)!
+        .calibration.fit.filter((f) => f.mcError && f.calibrated && f.instrument.startsWith('ALDR'));
+      expect(own.length, `${id}: one calibrated vanilla per repriced expiry`).toBe(3);
+      expect(s.results.repricing![id]!.quotes).toBe(own.length);
+      for (const f of own) {
+        expect(f.instrument).toMatch(/ K=4200 /);
+        expect(
+          Math.abs(f.mcError!.value),
+          report(f.instrument, f.mcError!.value, 0, f.mcError!.se),
+        ).toBeLessThanOrEqual(3 * f.mcError!.se);
+      }
+    }
   });
   it('Heston vs Black–Scholes: the fair Δ equals the difference of the two fit errors at the quote within 3 SE, and the rules need no stochastic vol', async () => {
     // For a European at (K, T) both variants are priced by their own closed forms (Black; Heston by COS,
