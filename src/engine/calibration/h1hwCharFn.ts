@@ -13,11 +13,12 @@
  * which is the A(u,τ) term of Grzelak & Oosterlee's H1-HW ChF with ρ_{v,r} = 0.
  */
 import type { HestonParams, HullWhiteParams } from '../simulation/types.ts';
-import type { LogCharFn } from './cosPricer.ts';
+import type { LogCharFn, LogCharFnGrid } from './cosPricer.ts';
 import { hestonLogChf } from './hestonCharFn.ts';
 import { hwB, hwSigmaAt, integratePieces } from './hullWhiteBondVol.ts';
 import { exp, log, pow, sin } from '../math/detMath.ts';
 import { hestonCumulants } from '../models/hestonCos.ts';
+import { hestonExponentGrid } from '../models/hestonCharFn.ts';
 
 /** ln Γ(x) for x > 0 by the Lanczos approximation (g = 7, n = 9; C. Lanczos, SIAM J. Numer. Anal. B1, 1964). */
 export function logGamma(x: number): number {
@@ -130,4 +131,17 @@ export function h1hwCumulants(
   const h = hestonCumulants(p, T);
   const extra = h1hwExtraVariance(p, T, rates);
   return { c1: h.c1 - 0.5 * extra, c2: h.c2 + extra, c4: h.c4 };
+}
+
+/** {@link h1hwLogChf} on a grid of real u (the Heston part by the models layer's inlined grid). */
+export function h1hwLogChfGrid(p: HestonParams, expiry: number, rates: H1HwRates): LogCharFnGrid {
+  const extra = h1hwExtraVariance(p, expiry, rates);
+  return (u, re, im) => {
+    hestonExponentGrid(p, expiry, u, re, im);
+    for (let j = 0; j < u.length; j++) {
+      const x = u[j]!;
+      re[j] = re[j]! - 0.5 * x * x * extra;
+      im[j] = im[j]! - 0.5 * x * extra;
+    }
+  };
 }

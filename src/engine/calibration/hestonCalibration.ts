@@ -11,11 +11,18 @@ import { EngineError, issue, throwIfErrors, type FieldIssue } from '../errors.ts
 import {
   cosCallPricesAdaptive,
   prepareCosSlice,
-  type LogCharFn,
+  type LogCharFnGrid,
   type PreparedCosSlice,
 } from './cosPricer.ts';
 import { hestonLogChf } from './hestonCharFn.ts';
-import { h1hwCumulants, h1hwLogChf, sqrtVarianceTable, type H1HwRates } from './h1hwCharFn.ts';
+import {
+  h1hwCumulants,
+  h1hwLogChf,
+  h1hwLogChfGrid,
+  sqrtVarianceTable,
+  type H1HwRates,
+} from './h1hwCharFn.ts';
+import { hestonExponentGrid } from '../models/hestonCharFn.ts';
 import { defaultTruncationL, hestonCumulants } from '../models/hestonCos.ts';
 import { blackImpliedVol, blackPrice } from './blackFormulas.ts';
 import { fitLeastSquares, type FitParameter, type FitReport } from './levenbergMarquardt.ts';
@@ -208,10 +215,11 @@ function pricesOn(p: HestonParams, quotes: VolQuote[], list: SliceOfQuotes[], ra
   const out = new Array<number>(quotes.length).fill(NaN);
   const sqrtV = rates ? sqrtVarianceTable(p, Math.max(...quotes.map((q) => q.expiry))) : undefined;
   for (const s of list) {
-    const logChf: LogCharFn = rates
-      ? h1hwLogChf(p, s.expiry, { ...rates, sqrtV })
-      : hestonLogChf(p, s.expiry);
-    const calls = s.slice.callPrices(logChf);
+    const T = s.expiry;
+    const grid: LogCharFnGrid = rates
+      ? h1hwLogChfGrid(p, T, { ...rates, sqrtV })
+      : (u, re, im) => hestonExponentGrid(p, T, u, re, im);
+    const calls = s.slice.callPricesOnGrid(grid);
     s.idx.forEach((i, k) => {
       const q = quotes[i]!;
       out[i] = q.isCall ? calls[k]! : calls[k]! - q.df * (q.forward - q.strike);
