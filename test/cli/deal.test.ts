@@ -22,6 +22,25 @@ describe('factor-triage deal', () => {
     expect(text).toMatch(/independent validation/);
   });
 
+  it('check of a deal under way lists what the past paid, what did not fire and the state carried on', async () => {
+    // Argued from the sample's terms (samples/deals/README.md): coupons of 2.1 % on 1,000,000 paid on the first
+    // three dates, the fourth missed (memory counter 1).
+    const io = captureIo();
+    expect(await main(['deal', 'check', 'samples/deals/autocallable-memory-seasoned.json'], io)).toBe(0);
+    const text = io.outLines.join('\n');
+    expect(text).toMatch(/under way: valued on 2026-11-23/);
+    for (const d of ['2026-02-10', '2026-05-10', '2026-08-10'])
+      expect(text).toContain(`${d}  coupon  0.0210000 per unit = 21000.00 DOM`);
+    expect(text).toMatch(/did not fire: .*coupon 2026-11-10, autocall 2026-11-10/);
+    expect(text).toMatch(/state after the past: missed = 1/);
+    const jio = captureIo();
+    expect(
+      await main(['deal', 'check', 'samples/deals/autocallable-memory-seasoned.json', '--json'], jio),
+    ).toBe(0);
+    const out = JSON.parse(jio.outLines.join('\n')) as { history?: { payments: unknown[] } }[];
+    expect(out[0]!.history!.payments).toHaveLength(3);
+  });
+
   it('check shows an expression error with its field, character and a caret, exit 2', async () => {
     const f = write('bad.json', {
       format: 'factor-triage/deal@1',

@@ -10,6 +10,7 @@ import { readFile } from 'node:fs/promises';
 import type { CliIo } from '../main.ts';
 import { EXIT } from '../main.ts';
 import { checkDeal } from '../../engine/deal/compileDeal.ts';
+import type { CompiledHistory } from '../../engine/deal/types.ts';
 import { analyseDeal } from '../../engine/deal/analyseDeal.ts';
 import { dealPayoffFactoryUrl, eventTimes } from '../../engine/deal/dealPayoffFactory.ts';
 import type { DealAnalysis } from '../../engine/deal/types.ts';
@@ -73,6 +74,29 @@ export function analysisLines(a: DealAnalysis): string[] {
   return lines;
 }
 
+/** The past of a deal under way, as the compiler resolved it: what was paid, what fired, the state carried on. */
+function historyLines(h: CompiledHistory): string[] {
+  const lines = [`  under way: valued on ${h.valuationDate}; the past was resolved from the deal's history`];
+  if (h.payments.length === 0) lines.push('  past payments: none');
+  else {
+    lines.push('  past payments (already paid, not part of the value):');
+    for (const p of h.payments)
+      lines.push(
+        `    ${p.date}  ${p.event}  ${p.amount.toPrecision(6)} per unit = ${p.cash.toFixed(2)} ${p.currency}`,
+      );
+  }
+  const skipped = h.events.filter((e) => !e.fired);
+  if (skipped.length)
+    lines.push(`  past events that did not fire: ${skipped.map((e) => `${e.event} ${e.date}`).join(', ')}`);
+  if (h.ignoredExercise.length)
+    lines.push(
+      `  past exercise dates (not taken, ignored): ${h.ignoredExercise.map((e) => `${e.label} ${e.date}`).join(', ')}`,
+    );
+  const st = Object.entries(h.state);
+  if (st.length) lines.push(`  state after the past: ${st.map(([k, v]) => `${k} = ${v}`).join(', ')}`);
+  return lines;
+}
+
 async function check(files: string[], json: boolean, io: CliIo): Promise<number> {
   if (files.length === 0) {
     io.err(usage);
@@ -109,10 +133,12 @@ async function check(files: string[], json: boolean, io: CliIo): Promise<number>
       continue;
     }
     const a = analyseDeal(r.compiled);
-    if (json) out.push({ file, ok: true, analysis: a, warnings: r.issues });
+    const history = r.compiled.history;
+    if (json) out.push({ file, ok: true, analysis: a, ...(history ? { history } : {}), warnings: r.issues });
     else {
       io.out(`${file}: ok`);
       for (const l of analysisLines(a)) io.out(l);
+      if (history) for (const l of historyLines(history)) io.out(l);
     }
   }
   if (json) io.out(JSON.stringify(out, null, 2));

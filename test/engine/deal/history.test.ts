@@ -53,26 +53,26 @@ const base = (over: Partial<DealInput>): DealInput => ({
 
 describe('past events are run once at compile time with the evaluator’s rules (argued from the payoff text)', () => {
   it('the demo autocallable a year in: three coupons paid, the fourth missed and remembered, not called', () => {
-    // Payoff text: a coupon of 2.1 % is paid when ALDR ≥ 75 % of 4200 = 3150; otherwise `missed` grows by one and
-    // the next paid coupon is 2.1 % × (1 + missed); a call at par needs ALDR ≥ 4200 on a call date (first
-    // 2027-11-23). Fixings 4310, 4105, 3720 are ≥ 3150 (paid), 3050 < 3150 (missed, and < 4200: no call).
+    // Payoff text: a coupon of 2.1 % is paid when ALDR ≥ 75 % of 5600 = 4200; otherwise `missed` grows by one and
+    // the next paid coupon is 2.1 % × (1 + missed); a call at par needs ALDR ≥ 5600 on a call date (first
+    // 2026-11-10). Fixings 5750, 5480, 4950 are ≥ 4200 (paid), 4080 < 4200 (missed, and < 5600: no call).
     const r = checkDeal(sample());
     expect(r.issues.filter((i) => i.severity === 'error')).toEqual([]);
     const c = r.compiled!;
     expect(c.state).toEqual([{ name: 'missed', initial: 1 }]);
     expect(c.history!.payments.map((p) => [p.date, p.amount, p.cash])).toEqual([
-      ['2027-02-23', 0.021, 21000],
-      ['2027-05-23', 0.021, 21000],
-      ['2027-08-23', 0.021, 21000],
+      ['2026-02-10', 0.021, 21000],
+      ['2026-05-10', 0.021, 21000],
+      ['2026-08-10', 0.021, 21000],
     ]);
-    expect(c.history!.events.filter((e) => e.date === '2027-11-23')).toEqual([
-      { event: 'coupon', date: '2027-11-23', fired: false },
-      { event: 'missed coupon', date: '2027-11-23', fired: true },
-      { event: 'autocall', date: '2027-11-23', fired: false },
+    expect(c.history!.events.filter((e) => e.date === '2026-11-10')).toEqual([
+      { event: 'coupon', date: '2026-11-10', fired: false },
+      { event: 'missed coupon', date: '2026-11-10', fired: true },
+      { event: 'autocall', date: '2026-11-10', fired: false },
     ]);
-    // The next coupon (2028-02-23) pays 2 × 2.1 % when ALDR ≥ 3150, and none below it.
-    const coupon = flowsOf(c, [4000, 3000]).find((f) => f.event === 'coupon')!;
-    expect(coupon.time).toBeCloseTo(79 / 365, 12); // 2027-12-06 → 2028-02-23: 79 days
+    // The next coupon (2027-02-10) pays 2 × 2.1 % when ALDR ≥ 4200, and none below it.
+    const coupon = flowsOf(c, [4400, 4000]).find((f) => f.event === 'coupon')!;
+    expect(coupon.time).toBeCloseTo(79 / 365, 12); // 2026-11-23 → 2027-02-10: 79 days
     expect(Array.from(coupon.values)).toEqual([1e6 * 0.021 * 2, 0]);
   });
 
@@ -151,16 +151,16 @@ describe('past events are run once at compile time with the evaluator’s rules 
   });
 
   it('a seasoned deal equals the same deal written from today with its state carried over, bit for bit', () => {
-    // The remaining life of the seasoned autocallable is a fresh deal valued on 2027-12-06 whose schedules restart
+    // The remaining life of the seasoned autocallable is a fresh deal valued on 2026-11-23 whose schedules restart
     // at the last past dates and whose `missed` counter starts at 1.
     const seasoned = compileDeal(sample());
     const fresh = sample();
     delete fresh.history;
     fresh.state = { missed: 1 };
     fresh.schedules = {
-      quarterly: { start: '2027-11-23', end: '2029-11-23', every: '3M' },
-      callDates: { start: '2027-11-23', end: '2029-08-23', every: '3M' },
-      final: { dates: ['2029-11-23'] },
+      quarterly: { start: '2026-11-10', end: '2028-11-10', every: '3M' },
+      callDates: { start: '2026-11-10', end: '2028-08-10', every: '3M' },
+      final: { dates: ['2028-11-10'] },
     };
     const f = compileDeal(fresh);
     expect(seasoned.gridTimes).toEqual(f.gridTimes);
@@ -180,14 +180,18 @@ describe('past events are run once at compile time with the evaluator’s rules 
 
 describe('the past run at compile time agrees with the evaluator run over the whole life', () => {
   it('the issued autocallable on paths that share the past = past coupons + the seasoned note discounted', () => {
-    // Second method in the project: the vectorised evaluator runs the issued note (valued 2026-11-23) over paths
-    // whose levels on the four past coupon dates are the seasoned file's fixings on every path and which continue
-    // from 3400 on 2027-12-06. Under a flat rate r (discount e^{−rt}, common practice) its value per path is the
-    // coupons paid before 2027-12-06 discounted, plus e^{−rτ} times the seasoned note's value on the continuation.
-    const issued = compileDeal(read('autocallable-memory.json'));
+    // Second method in the project: the vectorised evaluator runs the issued note (the seasoned file without its
+    // history, valued on its issue date 2025-11-10) over paths whose levels on the four past coupon dates are the
+    // seasoned file's fixings on every path and which continue from 3400 on 2026-11-23. Under a flat rate r
+    // (discount e^{−rt}, common practice) its value per path is the coupons paid before 2026-11-23 discounted, plus
+    // e^{−rτ} times the seasoned note's value on the continuation.
+    const issuedDeal = sample();
+    delete issuedDeal.history;
+    issuedDeal.valuationDate = '2025-11-10';
+    const issued = compileDeal(issuedDeal);
     const seasonedDeal = sample();
     const seasoned = compileDeal(seasonedDeal);
-    const tau = 378 / 365; // 2026-11-23 → 2027-12-06
+    const tau = 378 / 365; // 2025-11-10 → 2026-11-23
     const r = 0.03;
     const cont = makeTestBatch({
       nPaths: 2048,
@@ -206,7 +210,7 @@ describe('the past run at compile time agrees with the evaluator run over the wh
     const times = Float64Array.from([0, ...past, ...Array.from(cont.times, (s) => tau + s)]);
     const K = times.length;
     const eq = new Float64Array(K * n);
-    eq.fill(4200, 0, n);
+    eq.fill(5600, 0, n);
     pastLevels.forEach((v, i) => eq.fill(v, (i + 1) * n, (i + 2) * n));
     eq.set(cont.equity.ALDR!, (past.length + 1) * n);
     const discount = new Float64Array(K * n);
@@ -470,17 +474,17 @@ describe('bad history is refused with the field and the fix', () => {
   const errors = (d: unknown) => checkDeal(d).issues.filter((i) => i.severity === 'error');
   it('a missing past fixing names the underlying, the date and the event that needs it', () => {
     const d = sample();
-    delete d.history!.fixings!.ALDR!['2027-08-23'];
+    delete d.history!.fixings!.ALDR!['2026-08-10'];
     const e = errors(d);
     expect(e.map((i) => i.message)).toEqual([
-      'deal.history.fixings.ALDR["2027-08-23"]: needed by event "coupon" on 2027-08-23 (a past date); give the level observed that day',
+      'deal.history.fixings.ALDR["2026-08-10"]: needed by event "coupon" on 2026-08-10 (a past date); give the level observed that day',
     ]);
     expect(e[0]!.code).toBe('E_MISSING_FIXING');
     const needs = checkDeal(d).historyNeeds!;
     expect(needs.filter((n) => !n.given).map((n) => n.field)).toEqual([
-      'deal.history.fixings.ALDR["2027-08-23"]',
+      'deal.history.fixings.ALDR["2026-08-10"]',
     ]);
-    expect(needs.map((n) => n.date)).toEqual(['2027-02-23', '2027-05-23', '2027-08-23', '2027-11-23']);
+    expect(needs.map((n) => n.date)).toEqual(['2026-02-10', '2026-05-10', '2026-08-10', '2026-11-10']);
   });
   it('a missing past rate names the currency and the fixing date', () => {
     const d = base({
@@ -493,22 +497,22 @@ describe('bad history is refused with the field and the fix', () => {
   });
   it('a fixing on or after the valuation date, or for an unknown underlying, is refused', () => {
     const d = sample();
-    d.history!.fixings!.ALDR!['2027-12-06'] = 3100;
-    (d.history!.fixings as Record<string, Record<string, number>>)['BRIX'] = { '2027-02-23': 900 };
+    d.history!.fixings!.ALDR!['2026-11-23'] = 4150;
+    (d.history!.fixings as Record<string, Record<string, number>>)['BRIX'] = { '2026-02-10': 900 };
     const e = errors(d);
     expect(e.map((i) => [i.code, i.field])).toEqual([
-      ['E_HISTORY_NOT_PAST', 'deal.history.fixings.ALDR["2027-12-06"]'],
+      ['E_HISTORY_NOT_PAST', 'deal.history.fixings.ALDR["2026-11-23"]'],
       ['E_HISTORY_UNKNOWN_UNDERLYING', 'deal.history.fixings.BRIX'],
     ]);
     expect(e[0]!.message).toContain('remove it');
   });
   it('a deal the past autocalled does not compile: the message names the event, the date and that it ended', () => {
     const d = sample();
-    d.history!.fixings!.ALDR!['2027-11-23'] = 4300;
+    d.history!.fixings!.ALDR!['2026-11-10'] = 5700;
     const e = errors(d);
     expect(e.map((i) => [i.code, i.field])).toEqual([['E_DEAL_ENDED', 'deal.events[2]']]);
     expect(e[0]!.message).toContain('"autocall"');
-    expect(e[0]!.message).toContain('2027-11-23');
+    expect(e[0]!.message).toContain('2026-11-10');
     expect(e[0]!.message).toContain('the deal has ended');
   });
   it('a deal whose every date is past has ended', () => {

@@ -50,21 +50,21 @@ describe('Deal screen: past fixings', () => {
   it('is shown for the seasoned template with one row per given past fixing', () => {
     const html = renderScreen(read('autocallable-memory-seasoned.json'));
     expect(html).toMatch(/data-testid="past-fixings"/);
-    for (const d of ['2027-02-23', '2027-05-23', '2027-08-23', '2027-11-23'])
+    for (const d of ['2026-02-10', '2026-05-10', '2026-08-10', '2026-11-10'])
       expect(html).toContain(`data-past-field="deal.history.fixings.ALDR[&quot;${d}&quot;]"`);
   });
   it('lists every past date the deal needs, with the engine message at the missing one', () => {
     const deal = read('autocallable-memory-seasoned.json');
-    delete deal.history!.fixings!.ALDR!['2027-05-23'];
+    delete deal.history!.fixings!.ALDR!['2026-05-10'];
     const rows = pastFixingRows(deal, checkDeal(deal).historyNeeds);
-    expect(rows.map((r) => r.date)).toEqual(['2027-02-23', '2027-05-23', '2027-08-23', '2027-11-23']);
+    expect(rows.map((r) => r.date)).toEqual(['2026-02-10', '2026-05-10', '2026-08-10', '2026-11-10']);
     const html = renderPanel(deal);
     expect(html).toContain('1 past value still needed.');
     const row = html.slice(
-      html.indexOf('data-past-field="deal.history.fixings.ALDR[&quot;2027-05-23&quot;]"'),
+      html.indexOf('data-past-field="deal.history.fixings.ALDR[&quot;2026-05-10&quot;]"'),
     );
     const cell = row.slice(0, row.indexOf('</tr>'));
-    expect(cell).toContain('event &quot;coupon&quot; on 2027-05-23');
+    expect(cell).toContain('event &quot;coupon&quot; on 2026-05-10');
     expect(cell).toContain('give the level observed that day');
     expect(cell).toMatch(/aria-invalid="true"/);
   });
@@ -76,10 +76,10 @@ describe('Deal screen: past fixings', () => {
   });
   it('keeps a value given for a date nothing reads as a row, so it can be removed', () => {
     const deal = read('autocallable-memory-seasoned.json');
-    deal.history!.fixings!.ALDR!['2027-12-10'] = 3100;
+    deal.history!.fixings!.ALDR!['2026-11-27'] = 3100;
     const html = renderPanel(deal);
     const row = html.slice(
-      html.indexOf('data-past-field="deal.history.fixings.ALDR[&quot;2027-12-10&quot;]"'),
+      html.indexOf('data-past-field="deal.history.fixings.ALDR[&quot;2026-11-27&quot;]"'),
     );
     const cell = row.slice(0, row.indexOf('</tr>'));
     expect(cell).toContain('nothing reads it');
