@@ -44,8 +44,14 @@ import {
   type ErrorBudget,
   type FactorEstimate,
 } from './decision.ts';
-import { applyRules, candidateFactors, requiredFactors, FACTOR_LABELS, type FactorId } from './rules.ts';
-import { calibrateLadder, calibrationExpiries, type CalibratedLadder } from './ladderCalibration.ts';
+import { applyRules, FACTOR_LABELS, type FactorId } from './rules.ts';
+import {
+  calibrateLadder,
+  calibrationExpiries,
+  ladderFactors,
+  studyLadderRequest,
+  type CalibratedLadder,
+} from './ladderCalibration.ts';
 import { combination, type ColumnStats } from './stats.ts';
 import { shapley } from './shapley.ts';
 import { runInLooks } from './runInLooks.ts';
@@ -199,18 +205,8 @@ function prepare(input: StudyInput): Prepared {
       undefined,
     );
   const rules = applyRules(analysis, settings.rules);
-  const candidates = candidateFactors(rules);
-  const required = requiredFactors(rules);
-  for (const f of settings.extraCandidates) {
-    const st = rules.factors.find((x) => x.factor === f)!;
-    if (st.status === 'notNeeded' && !candidates.includes(f)) {
-      if (f === 'foreignRate' && analysis.currencies.length < 2) continue;
-      if (f === 'stochVol' && analysis.equities.length === 0) continue;
-      candidates.push(f);
-    }
-  }
-  const order: FactorId[] = ['stochVol', 'domesticRate', 'foreignRate'];
-  candidates.sort((a, b) => order.indexOf(a) - order.indexOf(b));
+  // The same choice `calibrate --deal` makes (one definition: ladderFactors).
+  const { candidates, required } = ladderFactors(analysis, settings);
   const tau = thresholdAmount(settings.threshold, compiled.notional);
   return { input, settings, markets, marketWarnings, compiled, analysis, candidates, required, rules, tau };
 }
@@ -367,26 +363,8 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
   // --- calibration
   progress(0.01, 'calibration', 'fitting every variant to the same instruments');
   const tCal = now();
-  const ladderReq = {
-    snapshot: snap,
-    analysis,
-    candidates,
-    required,
-    mode: S.calibration,
-    scheme: S.scheme,
-    bsStrikes: S.calibrationStrikes,
-    ...(S.hestonRefit === 'monteCarlo'
-      ? {
-          // The full-model check needs fine steps: a one-step QE check at a short expiry is biased and the
-          // correction would chase that bias (measured; half a month keeps it well inside the tolerance).
-          hestonMcRefit: {
-            paths: Math.max(aux, 16384),
-            seed: `${S.seed}/heston-refit`,
-            maxStep: Math.min(S.maxStep, 1 / 24),
-          },
-        }
-      : {}),
-  } as const;
+  // The request `calibrate --deal` makes too (one definition: studyLadderRequest).
+  const ladderReq = studyLadderRequest({ snapshot: snap, analysis, candidates, required, settings: S });
   const ladder = calibrateLadder(ladderReq);
   warnings.push(...ladder.warnings);
   const variants = ladder.variants.map((v) => v.spec);
