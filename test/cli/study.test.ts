@@ -59,6 +59,17 @@ describe('study, verify and diff commands', () => {
     expect(readdirSync(dir).filter((f) => f.endsWith('.tmp'))).toEqual([]);
     const saved = parseStudyFile(JSON.parse(readFileSync(studyFile, 'utf8')));
     expect(checkStudyHash(saved).ok).toBe(true);
+    // Each decided factor's budget is printed as its parts, and they add up to the budget column.
+    let checked = 0;
+    for (const v of saved.verdicts) {
+      const b = saved.results.budgetParts?.[v.factor];
+      if (!v.decision || !b) continue;
+      checked++;
+      expect(text).toMatch(/budget of .*: step halving .*, calibration .*, repricing /);
+      const sum = b.stepHalving + b.calibration + (b.repricing ?? 0) + (b.exerciseGap ?? 0);
+      expect(Math.abs(sum - v.decision.budget)).toBeLessThanOrEqual(1e-9 * Math.max(1, sum));
+    }
+    expect(checked).toBeGreaterThan(0);
   });
 
   it('verify re-runs the study bit-identically with one worker and with two', async () => {

@@ -292,6 +292,16 @@ export function summaryLines(s: SavedStudy): string[] {
       }`,
     );
   }
+  // What the budget column is made of, per decided factor (older study files carry no parts).
+  const parts = s.results.budgetParts;
+  if (parts)
+    for (const v of s.verdicts) {
+      const b = parts[v.factor];
+      if (!b || !v.decision) continue;
+      lines.push(
+        `  budget of ${FACTOR_LABELS[v.factor].split(' (')[0]}: step halving ${f(b.stepHalving)}, calibration ${f(b.calibration)}, repricing ${f(b.repricing ?? 0)}${b.exerciseGap === null ? '' : `, exercise gap ${f(b.exerciseGap)}`} ${ccy}`,
+      );
+    }
   lines.push('', `Recommended model: ${s.recommended.summary}`);
   const j = s.results.joint;
   if (j && j.outcome !== 'nothingDropped')
