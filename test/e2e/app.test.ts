@@ -171,6 +171,27 @@ describe('browser build', () => {
     }
   });
 
+  it('a deal under way shows its past fixings, what the past paid, and names a removed fixing as missing', async () => {
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.pickTemplate('autocallable-memory-seasoned');
+      await app.page.waitForSelector('[data-testid=past-payments] li');
+      // The sample's past (samples/deals/README.md): three coupons paid, the fourth missed and remembered.
+      expect(await app.page.$$eval('[data-testid=past-payments] li', (l) => l.length)).toBe(3);
+      expect(await app.page.textContent('[data-testid=past-state]')).toMatch(/missed = 1/);
+      await app.page.locator('[data-testid=past-fixings]').scrollIntoViewIfNeeded();
+      await app.shot(shots, 'deal-history', '[data-testid=past-fixings]');
+      const field = 'deal.history.fixings.ALDR["2026-05-10"]';
+      await app.page.click(`[aria-label='Remove ${field}']`);
+      // The engine re-checks the deal in its worker: wait for the panel to report the gap.
+      await app.page.waitForSelector('[data-testid=past-fixings-status].msg-error', { timeout: 10_000 });
+      expect(await app.page.textContent('[data-testid=deal-status]')).toMatch(/1 problem/);
+      expect(await app.page.textContent(`[data-past-field='${field}']`)).toMatch(/give the level observed/);
+    } finally {
+      await app.close();
+    }
+  });
+
   it('a bad number keeps the typed text with a message beside the field, also after a reload', async () => {
     const app = await AppPage.open(browser, url);
     try {
