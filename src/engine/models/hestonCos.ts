@@ -16,6 +16,11 @@
  * read off at two small u by Richardson extrapolation (the exponent C + D v₀ is ln φ exactly, no branch issue).
  * Number of terms N: the series is summed until the size of a term's contribution bound 2(F + K_max)|φ(u_k)|/(kπ)
  * stays below tol/5 for 4 consecutive k (N ≤ 2¹⁶), so N adapts to the maturity (short T has a wide φ).
+ *
+ * Heavy tails: where the cumulant range is wider than `LEWIS_RANGE_WIDTH` (long expiries with high vol of variance
+ * and strong negative correlation, e.g. Andersen (2008) Case I, whose put prices need a range of ±45 in ln S for 1e-9
+ * and so ~4000 cosine terms), the slice pricer integrates the Lewis formula on Gauss–Legendre panels instead
+ * (`hestonLewisSlice.ts`), unless the caller fixes N, L, the range or the method; the result names the method.
  */
 import { fail, requirePositive } from '../errors.ts';
 import type { HestonParams } from '../simulation/types.ts';
