@@ -206,7 +206,8 @@ export interface AdaptiveCosSlice {
  * from the fitted model's own cumulants. Per strike, cos/sin(ω_k(c − a)) come from one rotation recurrence.
  */
 export function cosCallPricesAdaptive(o: {
-  logChf: LogCharFn;
+  /** ln φ on blocks of frequencies (evaluated 32 at a time; terms past the stop are discarded). */
+  logChfGrid: LogCharFnGrid;
   forward: number;
   df: number;
   strikes: readonly number[];
@@ -217,39 +218,46 @@ export function cosCallPricesAdaptive(o: {
   /** Cap on the number of terms (default 16384). */
   maxTerms?: number;
 }): AdaptiveCosSlice {
-  const { logChf, forward: F, df, strikes, lo, width, tol } = o;
+  const { logChfGrid, forward: F, df, strikes, lo, width, tol } = o;
   const maxTerms = o.maxTerms ?? 16384;
   const kMax = Math.max(...strikes);
   const w = Math.PI / width;
+  const BLOCK = 32;
   let A = new Float64Array(256);
-  const out = new Float64Array(2);
+  const ub = new Float64Array(BLOCK);
+  const re = new Float64Array(BLOCK);
+  const im = new Float64Array(BLOCK);
   let n = 0;
   let quiet = 0;
   let converged = false;
   let prevMag = Infinity;
   const bound = (6 * df * kMax) / Math.PI;
-  while (n < maxTerms) {
-    const u = n * w;
-    logChf(u, out);
-    const mag = exp(out[0]!);
-    if (n > 0 && (mag > 1 + 1e-9 || (mag > prevMag * (1 + 1e-9) && mag < 0.5))) {
-      converged = true;
-      break;
-    }
-    prevMag = mag;
-    if (n >= A.length) {
-      const g = new Float64Array(2 * A.length);
-      g.set(A);
-      A = g;
-    }
-    // (2/width) Re[φ(u_k) e^{−iu_k lo}], halved at k = 0
-    A[n] = (2 / width) * mag * cos(out[1]! - u * lo) * (n === 0 ? 0.5 : 1);
-    n++;
-    if (n > 1) {
-      quiet = (bound * mag) / (n - 1) < tol / 5 ? quiet + 1 : 0;
-      if (quiet >= 4) {
+  blocks: while (n < maxTerms) {
+    const k0 = n;
+    for (let j = 0; j < BLOCK; j++) ub[j] = (k0 + j) * w;
+    logChfGrid(ub, re, im);
+    for (let j = 0; j < BLOCK && n < maxTerms; j++) {
+      const u = ub[j]!;
+      const mag = exp(re[j]!);
+      if (n > 0 && (mag > 1 + 1e-9 || (mag > prevMag * (1 + 1e-9) && mag < 0.5))) {
         converged = true;
-        break;
+        break blocks;
+      }
+      prevMag = mag;
+      if (n >= A.length) {
+        const g = new Float64Array(2 * A.length);
+        g.set(A);
+        A = g;
+      }
+      // (2/width) Re[φ(u_k) e^{−iu_k lo}], halved at k = 0
+      A[n] = (2 / width) * mag * cos(im[j]! - u * lo) * (n === 0 ? 0.5 : 1);
+      n++;
+      if (n > 1) {
+        quiet = (bound * mag) / (n - 1) < tol / 5 ? quiet + 1 : 0;
+        if (quiet >= 4) {
+          converged = true;
+          break blocks;
+        }
       }
     }
   }

@@ -14,14 +14,7 @@ import {
   type LogCharFnGrid,
   type PreparedCosSlice,
 } from './cosPricer.ts';
-import { hestonLogChf } from './hestonCharFn.ts';
-import {
-  h1hwCumulants,
-  h1hwLogChf,
-  h1hwLogChfGrid,
-  sqrtVarianceTable,
-  type H1HwRates,
-} from './h1hwCharFn.ts';
+import { h1hwCumulants, h1hwLogChfGrid, sqrtVarianceTable, type H1HwRates } from './h1hwCharFn.ts';
 import { hestonExponentGrid } from '../models/hestonCharFn.ts';
 import { defaultTruncationL, hestonCumulants } from '../models/hestonCos.ts';
 import { blackImpliedVol, blackPrice } from './blackFormulas.ts';
@@ -238,7 +231,8 @@ interface ModelRangeCheck {
  * Prices of the quotes on truncation ranges from the model's own cumulants: [c₁ − h, c₁ + h], h = L√(c₂ + √|c₄|)
  * (Fang & Oosterlee 2008, eq. (49), with the models layer's `defaultTruncationL` at 1e-10 relative), c₁, c₂, c₄ of
  * Heston (closed-form mean, Richardson-read c₂, c₄) or of H1-HW (plus the Gaussian rate part), and as many cosine
- * terms as the characteristic function needs for 1e-10 × df·F (`cosCallPricesAdaptive`).
+ * terms as the characteristic function needs for 1e-9 × df·F (`cosCallPricesAdaptive`), a thousandth of the
+ * check's price floor.
  */
 function modelRangeCheck(p: HestonParams, quotes: VolQuote[], rates?: H1HwRates): ModelRangeCheck {
   const out = new Array<number>(quotes.length).fill(NaN);
@@ -251,13 +245,13 @@ function modelRangeCheck(p: HestonParams, quotes: VolQuote[], rates?: H1HwRates)
     const half = defaultTruncationL(c2, c4, 1e-10) * Math.sqrt(c2 + Math.sqrt(Math.abs(c4)));
     const lo = c1 - half;
     const res = cosCallPricesAdaptive({
-      logChf: r ? h1hwLogChf(p, T, r) : hestonLogChf(p, T),
+      logChfGrid: r ? h1hwLogChfGrid(p, T, r) : (u, re, im) => hestonExponentGrid(p, T, u, re, im),
       forward: q0.forward,
       df: q0.df,
       strikes: s.idx.map((i) => quotes[i]!.strike),
       lo,
       width: 2 * half,
-      tol: 1e-10 * q0.df * q0.forward,
+      tol: 1e-9 * q0.df * q0.forward,
     });
     s.idx.forEach((i, k) => {
       const q = quotes[i]!;

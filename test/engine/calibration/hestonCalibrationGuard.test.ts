@@ -5,11 +5,10 @@ import {
   PRICER_CHECK_VOL_POINTS,
 } from '../../../src/engine/calibration/hestonCalibration.ts';
 import { cosCallPricesAdaptive } from '../../../src/engine/calibration/cosPricer.ts';
-import { hestonLogChf } from '../../../src/engine/calibration/hestonCharFn.ts';
 import {
   h1hwCumulants,
   h1hwExtraVariance,
-  h1hwLogChf,
+  h1hwLogChfGrid,
   sqrtVarianceTable,
 } from '../../../src/engine/calibration/h1hwCharFn.ts';
 import { blackImpliedVol } from '../../../src/engine/calibration/blackFormulas.ts';
@@ -19,6 +18,7 @@ import {
   defaultTruncationL,
   hestonCharFn,
   hestonCumulants,
+  hestonExponentGrid,
   hestonLewis,
   type HestonParams,
 } from '../../../src/engine/models/index.ts';
@@ -54,7 +54,7 @@ describe('COS slices with a range from the model and terms from the characterist
     const { c1, c2, c4 } = hestonCumulants(CASE_I, 10);
     const half = defaultTruncationL(c2, c4, 1e-10) * Math.sqrt(c2 + Math.sqrt(Math.abs(c4)));
     const r = cosCallPricesAdaptive({
-      logChf: hestonLogChf(CASE_I, 10),
+      logChfGrid: (u, re, im) => hestonExponentGrid(CASE_I, 10, u, re, im),
       forward: 100,
       df: 1,
       strikes: [100],
@@ -75,7 +75,7 @@ describe('COS slices with a range from the model and terms from the characterist
     const { c1, c2, c4 } = h1hwCumulants(p, 10, rates);
     const half = defaultTruncationL(c2, c4, 1e-10) * Math.sqrt(c2 + Math.sqrt(Math.abs(c4)));
     const r = cosCallPricesAdaptive({
-      logChf: h1hwLogChf(p, 10, rates),
+      logChfGrid: h1hwLogChfGrid(p, 10, rates),
       forward: 100 / df,
       df,
       strikes: [40, 80, 100, 120, 180],
