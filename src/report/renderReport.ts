@@ -449,12 +449,13 @@ ${table(
   ]),
 )}
 ${table(
-  ['Hedge ratio', 'Factor', 'Δ', 'SE', 'Threshold', 'Verdict'],
+  ['Hedge ratio', 'Factor', 'Δ', 'SE', 'Budget (step halving)', 'Threshold', 'Verdict'],
   s.results.greekVerdicts.map((g) => [
     esc(g.greek),
     esc(label(g.factor)),
     fmt(g.decision.delta),
     fmt(g.decision.se, 3),
+    g.stepHalvingChange ? fmt(g.decision.budget) : 'none',
     fmt(g.threshold),
     badge(g.decision.verdict),
   ]),

@@ -14,7 +14,8 @@ import { makeDriverLayout } from '../simulation/drivers.ts';
 import { modelBreakTimes, prepareVariant } from '../simulation/pathGenerator.ts';
 import { findTime, makeTimeGrid, type TimeGrid } from '../simulation/timeGrid.ts';
 import { batchSums, emptySums, mergeSums, type MomentSums } from '../simulation/momentSums.ts';
-import type { PathEvaluator, VariantSpec } from '../simulation/types.ts';
+import type { PathEvaluator, PathShift, VariantSpec } from '../simulation/types.ts';
+import { shiftBatch } from '../simulation/shiftBatch.ts';
 import { EngineError } from '../errors.ts';
 
 const now = () => (typeof performance !== 'undefined' ? performance.now() : Date.now());
@@ -29,7 +30,10 @@ function gridOf(times: number[], events: number[]): TimeGrid {
   return { times: t, eventIndex: events.map((e) => indexOf(e)), indexOf };
 }
 
-/** Result: sums over columns [coarse variant 0..V−1, fine variant 0..V−1], and the time split of the run. */
+/**
+ * Result: sums over columns [coarse, then fine] × [variant 0..V−1] × [scenario 0..S−1], i.e. column
+ * g·V·S + v·S + s (with one scenario, [coarse variant 0..V−1, fine variant 0..V−1]), and the time split of the run.
+ */
 export interface StepHalvingRun {
   sums: MomentSums;
   paths: number;
@@ -53,6 +57,11 @@ export async function runStepHalving(args: {
   onBatch?: (done: number, total: number) => void;
   /** Evaluator per variant (e.g. with a fitted exercise policy); default: the deal without exercise rights. */
   evaluators?: PathEvaluator[];
+  /**
+   * Path shifts evaluated on every variant's paths of both grids, in the main run's order (default: the base paths
+   * only), so hedge ratios by bump and revalue get the same discretisation check as the price.
+   */
+  scenarios?: PathShift[];
 }): Promise<StepHalvingRun> {
   const { variants, deal } = args;
   const coarse = makeTimeGrid(args.eventTimes, args.maxStep, modelBreakTimes(variants));
@@ -68,7 +77,8 @@ export async function runStepHalving(args: {
   const plain = makeDealEvaluator(deal);
   const evOf = (vi: number): PathEvaluator => args.evaluators?.[vi] ?? plain;
   const nc = coarse.times.length - 1;
-  let sums = emptySums(2 * variants.length);
+  const scenarios = args.scenarios ?? [{}];
+  let sums = emptySums(2 * variants.length * scenarios.length);
   let pathSeconds = 0;
   let payoffSeconds = 0;
   const variantSeconds = variants.map(() => 0);
@@ -97,7 +107,7 @@ export async function runStepHalving(args: {
         const t0 = now();
         const batch = pv.simulate(z, n);
         const t1 = now();
-        cols.push(evOf(vi)(batch));
+        for (const sc of scenarios) cols.push(evOf(vi)(shiftBatch(batch, sc, pv.variant)));
         const t2 = now();
         pathSeconds += (t1 - t0) / 1000;
         payoffSeconds += (t2 - t1) / 1000;

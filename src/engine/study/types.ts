@@ -198,6 +198,11 @@ export interface GreekVerdict {
   factor: FactorId;
   threshold: number;
   decision: FactorLookDecision;
+  /**
+   * Delta and rho: the change of this hedge-ratio difference when the step is halved (same random numbers), with
+   * its SE; the decision's budget is max(0, |change| − 2 SE). Absent for vega and in older files.
+   */
+  stepHalvingChange?: ValueSe;
 }
 
 /** One point of a correlation sweep. */
