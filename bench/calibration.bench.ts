@@ -43,7 +43,7 @@ export async function run(): Promise<void> {
   console.log(`baseline: one residual evaluation of the 5 × 8 grid (40 COS prices): ${fmtTime(baseline)}`);
   console.log(report('Heston fit 5 × 8, cold start (4 starts)', heston5x8Cold, baseline, { seconds: 0.1 }));
   console.log(
-    `  (${cold.fit.evaluations} evaluations in the best start, RMSE ${cold.rmseVolPoints.toFixed(3)} vol points)`,
+    `  (${cold.fit.evaluations} evaluations in the best start, RMSE ${cold.rmseVolPoints.toFixed(3)} vol points, residuals by the ${cold.pricer.residualPricer} COS slices, pricer check ${cold.pricer.disagreementVolPoints.toExponential(1)} vol points)`,
   );
   const heston5x8 = timePerCall(
     () => calibrateHeston({ name: 'ALDR', equity: eq, curve, quotes }).rmseVolPoints,
