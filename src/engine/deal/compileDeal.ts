@@ -12,7 +12,7 @@ import {
   type ExpressionError,
   type SymbolKind,
 } from './checkExpression.ts';
-import { expandSchedule, isoDayNumber, toYearFraction } from './dealDates.ts';
+import { expandSchedule, isoDayNumber, makeBusinessCalendar, toYearFraction, WEEKDAYS } from './dealDates.ts';
 import { dealShapeIssues, IDENT } from './dealSchema.ts';
 import { resolvePast } from './resolvePast.ts';
 import {
@@ -334,9 +334,10 @@ export function checkDeal(raw: unknown): DealCheck {
   }
   const schedules: Record<string, number[]> = {};
   const starts: Record<string, number> = {};
+  const calendar = guard(() => makeBusinessCalendar('deal.calendar', deal.calendar)) ?? WEEKDAYS;
   for (const [k, s] of Object.entries(deal.schedules)) {
     // dates before the valuation date belong to a deal under way: resolved from its history (resolvePast)
-    const times = guard(() => expandSchedule(`deal.schedules.${k}`, s, valuationDay, true));
+    const times = guard(() => expandSchedule(`deal.schedules.${k}`, s, valuationDay, true, calendar));
     if (times) schedules[k] = times;
     starts[k] =
       'start' in s

@@ -42,10 +42,19 @@ const underlying = z.discriminatedUnion('kind', [
     .strict(),
 ]);
 
+const roll = z.enum(['none', 'following', 'modifiedFollowing', 'preceding']);
+
 const schedule = z.union([
-  z.object({ dates: z.array(dateInput).min(1) }).strict(),
-  z.object({ start: dateInput, end: dateInput, every: z.string() }).strict(),
+  z.object({ dates: z.array(dateInput).min(1), roll: roll.optional() }).strict(),
+  z.object({ start: dateInput, end: dateInput, every: z.string(), roll: roll.optional() }).strict(),
 ]);
+
+const calendar = z
+  .object({
+    holidays: z.array(z.string()).optional(),
+    weekends: z.boolean().optional(),
+  })
+  .strict();
 
 const event = z
   .object({
@@ -94,6 +103,7 @@ export const dealSchema = z
     exercise: z.array(exercise).optional(),
     fundingSpread: z.number().min(-0.2).max(0.2).optional(),
     history: history.optional(),
+    calendar: calendar.optional(),
   })
   .strict();
 

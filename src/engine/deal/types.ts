@@ -41,7 +41,25 @@ export interface FxUnderlying {
 export type Underlying = EquityUnderlying | FxUnderlying;
 
 /** A schedule: explicit dates, or a start, end and step (`1D` calendar days, `1B` weekdays, `1W`, `3M`, `1Y`...). */
-export type ScheduleInput = { dates: DateInput[] } | { start: DateInput; end: DateInput; every: string };
+export type ScheduleInput = ({ dates: DateInput[] } | { start: DateInput; end: DateInput; every: string }) & {
+  /** How a date that is not a business day of the deal calendar moves (default `none`: dates stay as written). */
+  roll?: RollConvention;
+};
+
+/**
+ * Business-day conventions (ISDA 2006 Definitions, Sec. 4.12; section number from memory): `following` moves to the
+ * next business day, `preceding` to the previous one, `modifiedFollowing` to the next one unless that is in the next
+ * month, then to the previous one; `none` keeps the date.
+ */
+export type RollConvention = 'none' | 'following' | 'modifiedFollowing' | 'preceding';
+
+/** The deal's business days: weekdays (unless `weekends` is false) that are not listed holidays. */
+export interface CalendarInput {
+  /** ISO dates that are not business days. */
+  holidays?: string[];
+  /** Saturdays and Sundays are not business days (default true). */
+  weekends?: boolean;
+}
 
 /** How a payment in a currency other than the deal's currency is turned into the deal's currency. */
 export type Conversion =
@@ -126,6 +144,8 @@ export interface DealInput {
   fundingSpread?: number;
   /** Past fixings of a deal whose schedules began before the valuation date. */
   history?: HistoryInput;
+  /** Business days for schedules with a `roll` convention and for `B` (business-day) steps. */
+  calendar?: CalendarInput;
 }
 
 // ---------------------------------------------------------------------------------------------------------------
