@@ -387,7 +387,7 @@ ${table(
 )}
 <p class="muted">The budget b adds what Monte Carlo noise does not cover, for the richest variant and the variant without the factor:
 <strong>step halving</strong>, the change of Δ when every time step is cut in two on the same random numbers, beyond two of its
-own standard errors; <strong>calibration</strong>, |deal vega| times each variant's largest analytic vol fit error;
+own standard errors; <strong>calibration</strong>, |deal vega| times each variant's largest analytic vol fit error over the quotes expiring by the deal's last date;
 <strong>repricing</strong>, |deal vega| times each variant's largest error when it reprices its own calibrated vanillas on the
 study's paths, in implied vol beyond two standard errors (SE of the vol = price SE / Black–Scholes vega), so a simulated
 model that misses its instruments by more than its analytic fit says (an approximate characteristic function, a scheme

@@ -26,7 +26,10 @@ export type Verdict = 'keep' | 'drop' | 'undecided';
 export interface ErrorBudget {
   /** |Δ(dt) − Δ(dt/2)|: change of Δ when the time step is halved, on the same random numbers. */
   stepHalving: number;
-  /** Effect of the two variants' calibration residuals on Δ (first order: |deal vega| × analytic vol fit error). */
+  /**
+   * Effect of the two variants' calibration residuals on Δ (first order: |deal vega| × the largest analytic vol fit
+   * error over the quotes that expire by the deal's last date).
+   */
   calibration: number;
   /**
    * Effect of the two variants' Monte Carlo repricing errors on Δ: |deal vega| × (implied-vol error of each

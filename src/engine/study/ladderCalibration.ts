@@ -222,6 +222,7 @@ function fitBs(
       bsPrice({ type: 'call', S: eq.spot, K: t.strike, T: t.expiry, r, q: eq.divYield, vol });
     return {
       instrument: `${name} call K=${Math.round(t.strike * 100) / 100} T=${t.expiry}`,
+      expiry: t.expiry,
       marketVol: t.vol,
       modelVol: t.vol + err,
       priceError: px(t.vol + err) - px(t.vol),
@@ -269,6 +270,7 @@ function fitHeston(
     const a = r.analytic;
     const rows: FitRow[] = a.rows.map((x) => ({
       instrument: `${name} K=${Math.round(x.strike * 100) / 100} T=${x.expiry}`,
+      expiry: x.expiry,
       marketVol: x.marketVol,
       modelVol: x.modelVol,
       priceError: x.modelPrice - x.marketPrice,
@@ -298,6 +300,7 @@ function fitHeston(
   });
   const rows: FitRow[] = res.rows.map((r) => ({
     instrument: `${name} ${r.strike !== undefined ? `K=${Math.round(r.strike * 100) / 100}` : ''} T=${r.expiry}`,
+    expiry: r.expiry,
     marketVol: r.marketVol,
     modelVol: r.modelVol,
     priceError: r.modelPrice - r.marketPrice,

@@ -249,8 +249,20 @@ function fairnessVanillas(
   return out;
 }
 
-function maxAbsVolErr(l: CalibratedLadder, mask: number): number {
-  return l.variants.find((v) => v.mask === mask)?.calibration.maxAbsVolError ?? 0;
+/**
+ * Largest analytic equity vol fit error of a variant over the quotes that expire by the deal's last date
+ * (`lastTime`, years): the deal cannot depend on a vol quoted for a later expiry, which the ladder fits only to
+ * bracket the deal's life (calibrationExpiries). Rows without an expiry (older files) or a deal shorter than every
+ * quote fall back to every row, as the fit report's maxAbsVolError.
+ */
+function maxAbsVolErr(l: CalibratedLadder, mask: number, lastTime: number): number {
+  const v = l.variants.find((x) => x.mask === mask);
+  if (!v) return 0;
+  const rows = v.calibration.fit.filter(
+    (f) => f.mcError === null && f.expiry !== undefined && f.expiry <= lastTime + 1e-9,
+  );
+  if (rows.length === 0) return v.calibration.maxAbsVolError;
+  return Math.max(...rows.map((f) => Math.abs(f.modelVol - f.marketVol)));
 }
 
 /** Vol-space reading of one Monte Carlo reprice: the repriced vol, its SE and its error beyond two SE (decimal vols). */
@@ -769,7 +781,10 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       return vw && vegaStats ? Math.abs(combination(vegaStats, vw).value) * 100 : null;
     })();
     const calBudget = (a: number, b: number): number =>
-      vegaPerUnit === null ? 0 : vegaPerUnit * (maxAbsVolErr(ladder, a) + maxAbsVolErr(ladder, b));
+      vegaPerUnit === null
+        ? 0
+        : vegaPerUnit *
+          (maxAbsVolErr(ladder, a, analysis.lastTime) + maxAbsVolErr(ladder, b, analysis.lastTime));
     const repBudget = (a: number, b: number): number =>
       vegaPerUnit === null ? 0 : vegaPerUnit * ((repricingVol[a] ?? 0) + (repricingVol[b] ?? 0));
     if (!vegaStats)

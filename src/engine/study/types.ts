@@ -115,6 +115,8 @@ export interface FitRow {
   mcError: ValueSe | null;
   /** For Monte Carlo rows: whether the vanilla is one of this variant's calibration instruments. */
   calibrated?: boolean;
+  /** Expiry of an equity calibration row (years); absent for rate rows and in older files. */
+  expiry?: number;
   /**
    * For Monte Carlo rows: standard error of the repriced vol (`modelVol`), price SE divided by the quote's
    * Black–Scholes vega (Bachelier vega for caplets): first-order delta method, common practice. Absent in older files.

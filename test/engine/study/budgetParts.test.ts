@@ -57,3 +57,39 @@ describe('hedge-ratio verdicts carry the step-halving part of the budget', () =>
     expect(s.limitations.join(' ')).toMatch(/Delta and rho carry the step-halving part/);
   }, 60_000);
 });
+
+describe('the calibration part of the budget reads the quotes the deal can depend on', () => {
+  it('is |deal vega| × the two variants’ largest vol fit errors over quotes expiring by the deal’s last date', async () => {
+    // A one-year call: the ladder also fits the next quoted expiry (2y) to bracket the deal's life, but the deal's
+    // value cannot depend on a vol quoted for a later date (common practice: a payoff that has ended has no vega
+    // to later expiries), so that row stays out of the budget.
+    const settings: StudySettings = {
+      ...DEFAULT_SETTINGS,
+      paths: 8192,
+      firstPaths: 4096,
+      batchSize: 2048,
+      sweeps: null,
+      localVol: false,
+      auxiliaryFraction: 0.5,
+      extraCandidates: ['stochVol'],
+    };
+    const s = await runStudy({
+      deal: read('samples/deals/european-call.json'),
+      markets: [read('samples/market/demo-market.json') as MarketSnapshot],
+      settings,
+    });
+    const last = 1;
+    const full = s.ladder.find((v) => v.id === 'heston')!;
+    const without = s.ladder.find((v) => v.id === 'bs')!;
+    const errBy = (v: typeof full) =>
+      Math.max(
+        ...v.calibration.fit
+          .filter((f) => f.mcError === null && f.expiry !== undefined && f.expiry <= last + 1e-9)
+          .map((f) => Math.abs(f.modelVol - f.marketVol)),
+      );
+    expect(full.calibration.fit.some((f) => f.mcError === null && (f.expiry ?? 0) > last)).toBe(true);
+    const vega = s.results.greeks!.find((g) => g.variant === 'heston')!.vega!.value;
+    const want = Math.abs(vega) * 100 * (errBy(full) + errBy(without));
+    expect(s.results.budgetParts!.stochVol!.calibration).toBeCloseTo(want, 9);
+  }, 60_000);
+});
