@@ -395,6 +395,58 @@ bias at the quotes) widens the interval; <strong>exercise gap</strong>, the gap 
 dual bound. The parts overlap where a variant's simulated error is its analytic fit error seen again: adding them is
 conservative.${s.results.budgetParts ? '' : ' This study was written before the parts were recorded: only the step-halving part is shown.'}</p>`);
 
+  // 6b. What would decide the undecided factors
+  const wwd = s.results.whatWouldDecide;
+  if (wwd && Object.keys(wwd).length) {
+    const partName: Record<string, string> = {
+      stepHalving: 'step halving',
+      calibration: 'calibration',
+      repricing: 'repricing',
+      exerciseGap: 'exercise gap',
+      noise: 'noise z·SE',
+    };
+    const target = (it: NonNullable<typeof wwd>[string]['items'][number]): string => {
+      if (it.part === 'stepHalving')
+        return it.maxStep == null ? 'no step can' : `largest step ≤ ${fmt(it.maxStep * 365, 3)} days`;
+      if (it.part === 'noise') return it.paths == null ? 'no path count can' : `${fmt(it.paths, 10)} paths`;
+      if (it.part === 'calibration' || it.part === 'repricing')
+        return it.targetVolError == null
+          ? 'not alone'
+          : `vol errors summing below ${fmt(it.targetVolError * 100, 3)} vol points`;
+      return it.room > 0 ? 'a smaller gap' : 'not alone';
+    };
+    sec.push(`<h2>What would decide the undecided factors</h2>
+<p class="muted">An undecided factor's interval Δ ± (z·SE + b) still reaches τ. Each part of its half-width is shown with the room
+it has if the other parts stay as they are (distance of Δ from τ minus everything else) and what would bring it into that room:
+a smaller largest time step (step halving, first order in the step), a closer fit or repricing of the named variant at the named
+instrument, more dual-bound paths (exercise gap), or more paths (noise, SE ∝ 1/√n at the same z). A part whose room is not
+positive cannot decide the factor on its own. These are estimates to plan the next run, not verdicts.</p>
+${table(
+  ['Factor', 'Part', `Size (${esc(ccy)})`, 'Room', 'Would fit at', 'Where'],
+  Object.entries(wwd).flatMap(([f, w]) =>
+    w.items.map((it, i) => [
+      i === 0 ? `${esc(label(f))}<br><span class="muted">Δ ${fmt(w.distance, 3)} from τ</span>` : '',
+      i === 0 && w.largest
+        ? `<strong>${esc(partName[it.part] ?? it.part)}</strong>`
+        : esc(partName[it.part] ?? it.part),
+      fmt(it.size, 3),
+      fmt(it.room, 3),
+      esc(target(it)),
+      esc(
+        it.variant
+          ? `${it.variant}${it.instrument ? ` at ${it.instrument}` : ''}`
+          : it.dualPaths
+            ? `dual bound ${it.dualPaths.outer} × ${it.dualPaths.inner} paths`
+            : '—',
+      ),
+    ]),
+  ),
+)}
+<ul class="tight">${Object.entries(wwd)
+      .map(([f, w]) => `<li><strong>${esc(label(f))}</strong>: ${esc(w.summary)}.</li>`)
+      .join('')}</ul>`);
+  }
+
   // 7. Attribution
   if (s.results.shapley.length)
     sec.push(`<h2>Attribution (exact Shapley values over the ladder)</h2>
@@ -425,7 +477,21 @@ ${table(
     ['dynamics (Heston − LV)', fmt(lv.dynamics.value), fmt(lv.dynamics.se, 3)],
     ['total (Heston − BS)', fmt(lv.total.value), fmt(lv.total.se, 3)],
   ],
-)}`);
+)}${
+      lv.stepHalving
+        ? `<h3>Step check of the split</h3>
+<p class="muted">The three models re-run on the diagnostic's grid (largest step ${fmt(lv.stepHalving.maxStep * 365, 3)} days) and on the grid with every step cut in two, on the same random numbers (${fmt(lv.stepHalving.paths, 10)} paths; each coarse normal is the scaled sum of its two fine ones). A change beyond 2 SE and beyond a quarter of τ (${fmt(lv.stepHalving.flagAbove, 4)} ${esc(ccy)}) is flagged: log-Euler's step is then too coarse for that part.</p>
+${table(
+  ['Part', `Change on the halved grid (${esc(ccy)})`, 'SE', 'Flag'],
+  (['smile', 'dynamics'] as const).map((k) => [
+    k === 'smile' ? 'smile (LV − BS)' : 'dynamics (Heston − LV)',
+    fmt(lv.stepHalving![k].value),
+    fmt(lv.stepHalving![k].se, 3),
+    lv.stepHalving!.flagged.includes(k) ? '<strong>step too coarse</strong>' : 'within noise or immaterial',
+  ]),
+)}`
+        : '<p class="muted">This study was written before the split had a step-halving check.</p>'
+    }`);
   }
 
   // 9. Hedge ratios
@@ -467,7 +533,7 @@ ${table(
     const plots = s.results.sweeps
       .map((sw) =>
         lineChart({
-          title: `${sw.pair}: richest variant's price across the plausible range [${sw.range[0]}, ${sw.range[1]}] (market value ${fmt(sw.base, 3)}); band ${fmt(sw.band)} ${ccy}`,
+          title: `${sw.pair}${sw.scheme === 'euler' ? ' (Euler, ρ(v,r) ≠ 0 needs it)' : ''}: richest variant's price across the plausible range [${sw.range[0]}, ${sw.range[1]}] (market value ${fmt(sw.base, 3)}${sw.basePoint ? `, Euler price there ${fmt(sw.basePoint.price.value)}` : ''}); band ${fmt(sw.band)} ${ccy}`,
           xLabel: 'correlation',
           yLabel: `price (${ccy})`,
           series: [
@@ -489,19 +555,31 @@ ${table(
       `<h2>Unquoted correlations</h2>${table(
         [
           'Pair',
+          'Scheme',
           'Range',
+          'Base price (same scheme)',
           'Price band',
           'Moves more than τ',
           'Factors material somewhere (|Δ| − 1.96·SE > τ)',
         ],
         s.results.sweeps.map((sw) => [
           esc(sw.pair),
+          sw.scheme === 'euler'
+            ? 'Euler, ρ(v,r) ≠ 0 needs it'
+            : esc(s.input.settings.scheme === 'euler' ? 'Euler' : 'QE'),
           `${fmt(sw.range[0], 3)} … ${fmt(sw.range[1], 3)}`,
+          sw.basePoint
+            ? `${fmt(sw.basePoint.price.value)} ± ${fmt(sw.basePoint.price.se, 3)}`
+            : 'the main run',
           fmt(sw.band),
           sw.priceMovesMaterially ? '<strong>yes</strong>' : 'no',
           esc(sw.materialSomewhere.map(label).join(', ') || '—'),
         ]),
-      )}${plots}`,
+      )}${
+        s.results.sweeps.some((sw) => sw.scheme === 'euler')
+          ? `<p class="muted">A variance–rate correlation cannot be carried by the QE scheme (it assumes ρ(v,r) = 0), so those sweeps and their base point (ρ at its market value) run under full-truncation Euler (Lord, Koekkoek &amp; van Dijk 2010) on the same paths. Compare their points with their own Euler base price, not with the QE prices above: Euler adds its own discretisation bias, which the study's step-halving check (run under QE) does not measure.</p>`
+          : ''
+      }${plots}`,
     );
   }
 

@@ -89,6 +89,7 @@ const threshold = z.discriminatedUnion('kind', [
   z.object({ kind: z.literal('bidOffer'), fraction: num.positive(), width: num.positive() }),
 ]);
 const factorId = z.enum(['stochVol', 'domesticRate', 'foreignRate']);
+const decidingPart = z.enum(['stepHalving', 'calibration', 'repricing', 'exerciseGap', 'noise']);
 const budgetParts = z.object({
   stepHalving: num.nonnegative(),
   calibration: num.nonnegative(),
@@ -188,6 +189,57 @@ const studySchema = z.object({
           quotes: z.number().int().nonnegative(),
           capletNormalVolExcess: num.nonnegative().nullable(),
           inBudget: z.boolean().optional(),
+        }),
+      )
+      .optional(),
+    // Recorded since undecided verdicts say what would decide them; older files load without it.
+    whatWouldDecide: z
+      .record(
+        z.string(),
+        z.looseObject({
+          side: z.enum(['keep', 'drop']),
+          distance: num.nonnegative(),
+          slack: num,
+          largest: decidingPart.nullable(),
+          items: z.array(
+            z.looseObject({
+              part: decidingPart,
+              size: num.nonnegative(),
+              room: num,
+              remedy: z.string(),
+              maxStep: num.positive().nullable().optional(),
+              paths: z.number().int().positive().nullable().optional(),
+            }),
+          ),
+          summary: z.string(),
+        }),
+      )
+      .optional(),
+    // Recorded since the local-vol split has its step-halving check; older files load without it.
+    localVol: z
+      .looseObject({
+        smile: valueSe,
+        dynamics: valueSe,
+        total: valueSe,
+        stepHalving: z
+          .looseObject({
+            maxStep: num.positive(),
+            paths: z.number().int().positive(),
+            smile: valueSe,
+            dynamics: valueSe,
+            flagAbove: num.nonnegative(),
+            flagged: z.array(z.enum(['smile', 'dynamics'])),
+          })
+          .optional(),
+      })
+      .nullable()
+      .optional(),
+    sweeps: z
+      .array(
+        z.looseObject({
+          pair: z.string(),
+          scheme: z.enum(['qe', 'euler']).optional(),
+          basePoint: z.looseObject({ rho: num, price: valueSe }).optional(),
         }),
       )
       .optional(),

@@ -58,17 +58,20 @@ import { runInLooks } from './runInLooks.ts';
 import { runStepHalving } from './stepHalving.ts';
 import { fairnessPayoffFactoryUrl, type FairnessVanilla } from './fairnessPayoffFactory.ts';
 import { sealStudy, settingsSchema } from './savedStudy.ts';
+import { whatWouldDecide, type DecidingContext, type WhatWouldDecide } from './whatWouldDecide.ts';
 import {
   STUDY_FORMAT,
   TOOL_NAME,
   type FactorVerdict,
   type LadderVariant,
   type GreekVerdict,
+  type LocalVolStepCheck,
   type SavedStudy,
   type StudyInput,
   type StudyResults,
   type StudySettings,
   type Sweep,
+  type SweepPoint,
   type ValueSe,
   type VariantRepricing,
 } from './types.ts';
@@ -263,6 +266,27 @@ function maxAbsVolErr(l: CalibratedLadder, mask: number, lastTime: number): numb
   );
   if (rows.length === 0) return v.calibration.maxAbsVolError;
   return Math.max(...rows.map((f) => Math.abs(f.modelVol - f.marketVol)));
+}
+
+/** The analytic fit row behind {@link maxAbsVolErr}: the quote with the largest equity vol fit error; null if none. */
+function largestFitRow(
+  l: CalibratedLadder,
+  mask: number,
+  lastTime: number,
+): { instrument: string; error: number } | null {
+  const v = l.variants.find((x) => x.mask === mask);
+  if (!v) return null;
+  const analytic = v.calibration.fit.filter(
+    (f) => f.mcError === null && !/^\S+ (caplet|swaption) /.test(f.instrument),
+  );
+  const inLife = analytic.filter((f) => f.expiry !== undefined && f.expiry <= lastTime + 1e-9);
+  const rows = inLife.length ? inLife : analytic;
+  let best: { instrument: string; error: number } | null = null;
+  for (const f of rows) {
+    const e = Math.abs(f.modelVol - f.marketVol);
+    if (e > 0 && (!best || e > best.error)) best = { instrument: f.instrument, error: e };
+  }
+  return best;
 }
 
 /** Vol-space reading of one Monte Carlo reprice: the repriced vol, its SE and its error beyond two SE (decimal vols). */
@@ -810,11 +834,56 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       });
     const seq = k > 0 ? decideSequential({ looks: lookStats.map(estimatesAt), schedule, tau }) : [];
 
+    // what would decide each undecided factor: the largest part of its interval and what reduces it
+    const variantOf = (mask: number) => ladder.variants.find((v) => v.mask === mask)!;
+    const decideContext = (fi: number): DecidingContext => {
+      const pair = [variantOf(full), variantOf(looFor(fi))];
+      const fitRows = pair
+        .map((v) => ({ v, row: largestFitRow(ladder, v.mask, analysis.lastTime) }))
+        .filter((x) => x.row !== null)
+        .sort((a, b) => b.row!.error - a.row!.error);
+      const rep = pair
+        .map((v) => ({ v, r: repricing[v.id]! }))
+        .filter((x) => x.r.inBudget !== false && x.r.instrument !== null && x.r.volExcess > 0)
+        .sort((a, b) => b.r.volExcess - a.r.volExcess);
+      const dual = pair.map((v) => v.exercise?.dual).find((x) => x) ?? null;
+      return {
+        paths: schedule[schedule.length - 1]!.paths,
+        batchSize: S.batchSize,
+        maxStep,
+        stepChange: stepHalvingRaw[candidates[fi]!] ?? null,
+        vegaPerUnit,
+        calibration: fitRows.length
+          ? {
+              variant: fitRows[0]!.v.id,
+              instrument: fitRows[0]!.row!.instrument,
+              volError: fitRows[0]!.row!.error,
+            }
+          : null,
+        repricing: rep.length
+          ? { variant: rep[0]!.v.id, instrument: rep[0]!.r.instrument!, volExcess: rep[0]!.r.volExcess }
+          : null,
+        dual: dual ? { outer: dual.nOuter, inner: dual.nInner } : null,
+      };
+    };
+    const whatDecides: Record<string, WhatWouldDecide> = {};
+    candidates.forEach((f, fi) => {
+      const d = seq[fi]!;
+      if (d.verdict !== 'undecided') return;
+      whatDecides[f] = whatWouldDecide({
+        decision: d.at,
+        tau,
+        parts: budgetFor(fi),
+        context: decideContext(fi),
+      });
+    });
+
     // verdicts
     const verdicts: FactorVerdict[] = P.rules.factors.map((r) => {
       const idx = candidates.indexOf(r.factor);
       if (idx >= 0) {
         const d = seq[idx]!;
+        const decides = whatDecides[r.factor];
         const reason =
           d.verdict === 'keep'
             ? `|Δ| clears τ by more than z·SE + b at ${schedule[d.decidedAtLook!]!.paths} paths`
@@ -829,7 +898,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           verdict: d.verdict,
           decision: d.at,
           decidedAtLook: d.decidedAtLook,
-          reason: `${reason}; rules: ${r.reason}`,
+          reason: `${reason}${decides ? `; what would decide it: ${decides.summary}` : ''}; rules: ${r.reason}`,
         };
       }
       return {
@@ -946,7 +1015,13 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
     }
 
     // local-vol diagnostic: Black–Scholes, Heston and local vol on one finer grid (log-Euler needs small steps)
-    let lvRun: { lv: ValueSe; smile: ValueSe; dynamics: ValueSe; total: ValueSe } | null = null;
+    let lvRun: {
+      lv: ValueSe;
+      smile: ValueSe;
+      dynamics: ValueSe;
+      total: ValueSe;
+      stepHalving?: LocalVolStepCheck;
+    } | null = null;
     if (lvVariant) {
       progress(
         0.74,
@@ -969,6 +1044,45 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         dynamics: combination(st, { 1: 1, 2: -1 }),
         total: combination(st, { 1: 1, 0: -1 }),
       };
+      // Step-halving check of the split on the diagnostic's own grid (same random numbers on both grids):
+      // columns [coarse BS, Heston, LV, fine BS, Heston, LV].
+      checkAbort();
+      progress(0.745, 'local vol', 'step-halving check of the split');
+      const lvSh = await runStepHalving({
+        variants: lvVariants,
+        deal: compiled,
+        eventTimes,
+        maxStep: grid.maxStep,
+        seed: S.seed,
+        paths: stepPaths,
+        batchSize: S.batchSize,
+        signal: opts.signal,
+        ...(hasExercise
+          ? { evaluators: lvVariants.map((v) => makeExercisePathEvaluator(compiled, policies[v.id]!)) }
+          : {}),
+      });
+      simSeconds += lvSh.pathSeconds + lvSh.payoffSeconds;
+      const shs = toStats(lvSh.sums);
+      const flagAbove = tau / 4;
+      const lvChange = {
+        smile: combination(shs, { 5: 1, 3: -1, 2: -1, 0: 1 }),
+        dynamics: combination(shs, { 4: 1, 5: -1, 1: -1, 2: 1 }),
+      };
+      const flagged = (['smile', 'dynamics'] as const).filter((k) => {
+        const c = lvChange[k];
+        return Math.abs(c.value) > 2 * c.se && Math.abs(c.value) > flagAbove;
+      });
+      lvRun.stepHalving = {
+        maxStep: grid.maxStep,
+        paths: lvSh.paths,
+        ...lvChange,
+        flagAbove,
+        flagged: [...flagged],
+      };
+      for (const k of flagged)
+        warnings.push(
+          `Local-vol diagnostic: the ${k} part changes by ${lvChange[k].value.toPrecision(4)} ± ${lvChange[k].se.toPrecision(3)} when the log-Euler step of ${fmtStep(grid.maxStep)} is halved (beyond 2 SE and a quarter of τ); read the split with care or use a finer grid.`,
+        );
       if (vanillas.length) {
         const fr = await runInLooks({
           spec: {
@@ -1016,15 +1130,16 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           (a.startsWith('var:') && b.startsWith('rate:')) || (b.startsWith('var:') && a.startsWith('rate:'))
         );
       };
-      const pairs = Object.entries(snap.correlationRanges).filter(
-        ([p]) => p.split('|').every((d) => active.has(d)) && !(S.scheme === 'qe' && isVarRate(p)),
+      // Under QE a variance–rate correlation must be zero: those pairs are swept under full-truncation Euler, with
+      // their base point re-run under Euler too, so each such sweep compares one scheme with itself.
+      const needsEuler = (p: string) => S.scheme === 'qe' && isVarRate(p);
+      const pairs = Object.entries(snap.correlationRanges).filter(([p]) =>
+        p.split('|').every((d) => active.has(d)),
       );
-      const skipped = Object.keys(snap.correlationRanges).filter(
-        (p) => p.split('|').every((d) => active.has(d)) && S.scheme === 'qe' && isVarRate(p),
-      );
-      if (skipped.length)
+      const eulerPairs = pairs.map(([p]) => p).filter(needsEuler);
+      if (eulerPairs.length)
         limitations.push(
-          `Not swept: ${skipped.join(', ')} — a variance–rate correlation needs the Euler scheme (QE assumes it is zero).`,
+          `Swept under full-truncation Euler (Lord, Koekkoek & van Dijk 2010), ρ(v,r) ≠ 0 needs it: ${eulerPairs.join(', ')}. The study's QE scheme (Andersen 2008) assumes ρ(v,r) = 0, so these sweeps and their base point are re-run under Euler on the same paths; their prices carry Euler's own discretisation bias (not checked by step halving), so compare their points with their Euler base point, not with the QE prices.`,
         );
       pairs.forEach(([pair, range]) => {
         const [a, b] = pair.split('|') as [string, string];
@@ -1035,6 +1150,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           pair,
           range,
           base,
+          ...(needsEuler(pair) ? { scheme: 'euler' as const } : {}),
           points: [],
           band: 0,
           materialSomewhere: [],
@@ -1044,43 +1160,57 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       let done = 0;
       const sweepMasks = [...new Set([full, ...candidates.map((_, fi) => full ^ (1 << fi))])];
       const at = (mk: number) => sweepMasks.indexOf(mk);
-      for (const sw of sweeps) {
+      const sweepPoint = async (sw: Sweep, rho: number): Promise<SweepPoint | null> => {
         const [a, b] = sw.pair.split('|') as [string, string];
+        const l = calibrateLadder({
+          ...ladderReq,
+          ...(sw.scheme ? { scheme: sw.scheme } : {}),
+          correlationOverride: { [`${a}|${b}`]: rho },
+        });
+        const m = l.variants[full]!.spec.correlation;
+        const used = m.names.filter((x) => active.has(x));
+        const sub = used.map((x) => used.map((y) => m.matrix[m.names.indexOf(x)]![m.names.indexOf(y)]!));
+        if (!isPsd(sub)) {
+          warnings.push(
+            `sweep ${sw.pair} = ${rho.toFixed(3)}: the correlation matrix is not positive semi-definite; point skipped`,
+          );
+          return null;
+        }
+        const spec: RunSpec = {
+          variants: sweepMasks.map((mk) => l.variants[mk]!.spec),
+          payoff,
+          grid: { eventTimes, maxStep },
+          seed: S.seed,
+          batchSize: S.batchSize,
+          maxPaths: aux,
+        };
+        const r = await runInLooks({ spec, executor, lookPaths: [aux], signal: opts.signal });
+        simSeconds += r.seconds;
+        const st = toStats(r.looks[0]!);
+        const deltas: Record<string, ValueSe> = {};
+        candidates.forEach((f, fi) => {
+          deltas[f] = combination(st, { [at(full)]: 1, [at(looFor(fi))]: -1 });
+        });
+        return { rho, price: combination(st, { [at(full)]: 1 }), deltas };
+      };
+      for (const sw of sweeps) {
         const n = S.sweeps.points;
+        if (sw.scheme === 'euler') {
+          checkAbort();
+          const bp = await sweepPoint(sw, sw.base);
+          if (bp) sw.basePoint = bp;
+        }
         for (let i = 0; i < n; i++) {
           checkAbort();
           const rho = sw.range[0] + ((sw.range[1] - sw.range[0]) * i) / (n - 1);
-          const l = calibrateLadder({ ...ladderReq, correlationOverride: { [`${a}|${b}`]: rho } });
-          const m = l.variants[full]!.spec.correlation;
-          const used = m.names.filter((x) => active.has(x));
-          const sub = used.map((x) => used.map((y) => m.matrix[m.names.indexOf(x)]![m.names.indexOf(y)]!));
-          if (!isPsd(sub)) {
-            warnings.push(
-              `sweep ${sw.pair} = ${rho.toFixed(3)}: the correlation matrix is not positive semi-definite; point skipped`,
-            );
-            continue;
-          }
-          const spec: RunSpec = {
-            variants: sweepMasks.map((mk) => l.variants[mk]!.spec),
-            payoff,
-            grid: { eventTimes, maxStep },
-            seed: S.seed,
-            batchSize: S.batchSize,
-            maxPaths: aux,
-          };
-          const r = await runInLooks({ spec, executor, lookPaths: [aux], signal: opts.signal });
-          simSeconds += r.seconds;
-          const st = toStats(r.looks[0]!);
-          const deltas: Record<string, ValueSe> = {};
-          candidates.forEach((f, fi) => {
-            deltas[f] = combination(st, { [at(full)]: 1, [at(looFor(fi))]: -1 });
-          });
-          sw.points.push({ rho, price: combination(st, { [at(full)]: 1 }), deltas });
+          const pt = await sweepPoint(sw, rho);
+          if (!pt) continue;
+          sw.points.push(pt);
           done++;
           progress(
             0.75 + (0.15 * done) / Math.max(1, sweeps.length * n),
             'sweeps',
-            `${sw.pair} = ${rho.toFixed(2)}`,
+            `${sw.pair} = ${rho.toFixed(2)}${sw.scheme === 'euler' ? ' (Euler)' : ''}`,
           );
         }
         const prices = sw.points.map((p) => p.price.value);
@@ -1226,7 +1356,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           );
     if (lvVariant)
       limitations.push(
-        "The local-volatility diagnostic uses Dupire's formula on an SVI fit of the grid, simulated by log-Euler on a fine grid (a week, or 1/200 of the deal's life) beside Black–Scholes and Heston on the same normals (no step-halving check); its vanilla repricing on the study paths is shown with the other variants.",
+        "The local-volatility diagnostic uses Dupire's formula on an SVI fit of the grid, simulated by log-Euler on a fine grid (a week, or 1/200 of the deal's life) beside Black–Scholes and Heston on the same normals; the change of each part when that step is halved (same random numbers) is reported with its SE; its vanilla repricing on the study paths is shown with the other variants.",
       );
     const assumed = Object.entries(snap.correlationRanges ?? {}).map(([p, r]) => {
       const [a, b] = p.split('|') as [string, string];
@@ -1260,13 +1390,21 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       greeks,
       greekVerdicts,
       sweeps,
-      localVol: lvRun ? { smile: lvRun.smile, dynamics: lvRun.dynamics, total: lvRun.total } : null,
+      localVol: lvRun
+        ? {
+            smile: lvRun.smile,
+            dynamics: lvRun.dynamics,
+            total: lvRun.total,
+            ...(lvRun.stepHalving ? { stepHalving: lvRun.stepHalving } : {}),
+          }
+        : null,
       ...(perEquity.length ? { perEquity } : {}),
       modelRisk,
       stepHalving,
       stepHalvingChange: stepHalvingRaw,
       budgetParts,
       repricing,
+      ...(Object.keys(whatDecides).length ? { whatWouldDecide: whatDecides } : {}),
       stability,
     };
     const recSummary = recFactors.length

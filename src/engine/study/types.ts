@@ -15,6 +15,7 @@ import type {
   Verdict,
 } from './decision.ts';
 import type { FactorId, FactorRule, RuleSettings } from './rules.ts';
+import type { WhatWouldDecide } from './whatWouldDecide.ts';
 
 /** Format tag of a saved study. */
 export const STUDY_FORMAT = 'factor-triage/study@1' as const;
@@ -207,6 +208,28 @@ export interface GreekVerdict {
   stepHalvingChange?: ValueSe;
 }
 
+/**
+ * Step-halving check of the local-vol split: Black–Scholes, Heston and local vol on the diagnostic's grid and on the
+ * grid with every step cut in two, on the same random numbers (coarse normal = (Z_2k + Z_2k+1)/√2).
+ */
+export interface LocalVolStepCheck {
+  /** Largest step of the diagnostic's grid (years); the check's fine grid halves every step. */
+  maxStep: number;
+  /** Paths of the check. */
+  paths: number;
+  /** Change of the smile part (LV − BS) from the grid to the halved grid, with its SE on paired paths. */
+  smile: ValueSe;
+  /** Change of the dynamics part (Heston − LV), with its SE. */
+  dynamics: ValueSe;
+  /**
+   * Size a change must exceed (beyond 2 SE) to be flagged: a quarter of τ (a choice of this tool: such a change moves
+   * a part by a material share of the threshold).
+   */
+  flagAbove: number;
+  /** Parts whose change exceeds both 2 SE and `flagAbove`. */
+  flagged: ('smile' | 'dynamics')[];
+}
+
 /** One point of a correlation sweep. */
 export interface SweepPoint {
   rho: number;
@@ -223,6 +246,16 @@ export interface Sweep {
   points: SweepPoint[];
   /** Price band over the range (max − min of the richest variant's price). */
   band: number;
+  /**
+   * Heston scheme of the sweep's points: 'euler' (full-truncation Euler) when a study run under QE sweeps a
+   * variance–rate correlation, which QE cannot carry (ρ(v,r) ≠ 0 needs Euler). Absent: the study's scheme.
+   */
+  scheme?: 'qe' | 'euler';
+  /**
+   * For an Euler sweep of a QE study: the base point (ρ at its market value) re-run under Euler on the sweep's paths,
+   * so the points are compared with a base of the same scheme. Absent otherwise and in older files.
+   */
+  basePoint?: SweepPoint;
   /** Factors whose Δ exceeds τ somewhere in the range (beyond z·SE). */
   materialSomewhere: string[];
   /** The richest price moves by more than τ across the range. */
@@ -245,7 +278,13 @@ export interface StudyResults {
   /** On request: Δ of the stochastic vol of each equity alone (richest minus richest with that equity on BS). */
   perEquity?: { equity: string; delta: ValueSe }[];
   /** Local-vol split of the stochastic-vol effect (deterministic rates). */
-  localVol: { smile: ValueSe; dynamics: ValueSe; total: ValueSe } | null;
+  localVol: {
+    smile: ValueSe;
+    dynamics: ValueSe;
+    total: ValueSe;
+    /** Step-halving check of the split on its own grid; absent in older files. */
+    stepHalving?: LocalVolStepCheck;
+  } | null;
   /** Spread of prices across variants that fit the market within tolerance. */
   modelRisk: { min: number; max: number; spread: number; variants: string[] };
   /** Step-halving part of each factor's budget: max(0, |change of Δ on the halved grid| − 2 SE of that change). */
@@ -257,6 +296,11 @@ export interface StudyResults {
    * `budget`). Absent in files written before the parts were recorded.
    */
   budgetParts?: Record<string, ErrorBudget>;
+  /**
+   * Per undecided candidate factor: the largest part of its interval Δ ± (z·SE + b) and what would reduce each part.
+   * Absent when no factor is undecided and in older files.
+   */
+  whatWouldDecide?: Record<string, WhatWouldDecide>;
   /** Per ladder variant id, its Monte Carlo repricing error beyond noise. Absent in older files. */
   repricing?: Record<string, VariantRepricing>;
   /** Other snapshots: per date, the verdicts and calibrated parameters. */

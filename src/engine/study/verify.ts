@@ -26,6 +26,21 @@ export function predatesRepricing(s: SavedStudy): boolean {
   return s.results.budgetParts === undefined;
 }
 
+/**
+ * What a re-run records that the saved study lacks because an older version wrote it: what would decide its
+ * undecided factors, the step check of the local-vol split, the variance–rate sweeps under Euler. Empty when none.
+ */
+export function missingDiagnostics(saved: SavedStudy, rerun: SavedStudy): string[] {
+  const out: string[] = [];
+  if (rerun.results.whatWouldDecide && !saved.results.whatWouldDecide)
+    out.push('what would decide each undecided factor (also in its reason)');
+  if (rerun.results.localVol?.stepHalving && saved.results.localVol && !saved.results.localVol.stepHalving)
+    out.push('the step-halving check of the local-vol split');
+  const euler = (s: SavedStudy) => s.results.sweeps.some((w) => w.scheme === 'euler');
+  if (euler(rerun) && !euler(saved)) out.push('the variance–rate correlation sweeps under Euler');
+  return out;
+}
+
 function show(v: unknown): string {
   const s = JSON.stringify(v);
   return s === undefined ? String(v) : s.length > 120 ? s.slice(0, 117) + '...' : s;
@@ -60,6 +75,10 @@ export async function verifyStudy(saved: SavedStudy, opts: RunStudyOptions = {})
       }${
         predatesRepricing(saved) && !predatesRepricing(again)
           ? '; the saved study predates the repricing part of the error budget (each variant’s Monte Carlo repricing error), which this version adds, so budgets and verdicts can differ'
+          : ''
+      }${
+        missingDiagnostics(saved, again).length
+          ? `; the saved study predates ${missingDiagnostics(saved, again).join(', ')}, which this version records`
           : ''
       }`,
       seconds,
