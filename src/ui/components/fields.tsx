@@ -130,8 +130,21 @@ export function TextField(props: {
   placeholder?: string;
   compact?: boolean;
   wide?: boolean;
+  /** Also show the issues of the list items under this path (`path[0]`, `path[1]`...), named by position. */
+  itemIssues?: boolean;
 }) {
-  const issues = useContext(IssueContext).get(props.path) ?? [];
+  const byField = useContext(IssueContext);
+  const issues = [...(byField.get(props.path) ?? [])];
+  if (props.itemIssues)
+    for (const [f, list] of byField) {
+      const m = f.startsWith(props.path + '[') ? /^\[(\d+)\]/.exec(f.slice(props.path.length)) : null;
+      if (!m) continue;
+      for (const i of list)
+        issues.push({
+          ...i,
+          message: `item ${Number(m[1]) + 1}: ${i.message.startsWith(f + ' ') ? i.message.slice(f.length + 1) : i.message}`,
+        });
+    }
   const msgId = useId();
   const inputId = useId();
   const local = props.check ? props.check(props.value) : null;

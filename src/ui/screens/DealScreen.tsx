@@ -10,6 +10,7 @@ import type {
   EventInput,
   HistoryNeed,
   PaymentInput,
+  RollConvention,
   ScheduleInput,
   Underlying,
 } from '../../engine/deal/types.ts';
@@ -19,6 +20,7 @@ import { DEAL_TEMPLATES } from '../state/samples.ts';
 import { VerdictMark } from '../components/verdict.tsx';
 import { formShapeProblem } from '../state/dealShape.ts';
 import { ScreenBoundary } from '../components/ScreenBoundary.tsx';
+import { CalendarPanel } from './CalendarPanel.tsx';
 
 const FACTOR_SHORT: Record<string, string> = {
   stochVol: 'Stochastic vol',
@@ -524,6 +526,8 @@ export function DealScreen() {
         </button>
       </section>
 
+      <CalendarPanel deal={deal} update={update} mark={mark} />
+
       <PastFixingsPanel
         deal={deal}
         needs={review?.historyNeeds}
@@ -748,6 +752,14 @@ export function DealScreen() {
   );
 }
 
+/** Roll conventions as the schedule editor offers them (ISDA 2006 Definitions, Sec. 4.12; from memory). */
+const ROLL_OPTIONS: { value: RollConvention; label: string }[] = [
+  { value: 'none', label: 'keep dates as written' },
+  { value: 'following', label: 'next business day (following)' },
+  { value: 'modifiedFollowing', label: 'next, or previous if that changes month (modified following)' },
+  { value: 'preceding', label: 'previous business day (preceding)' },
+];
+
 function ScheduleRow(props: {
   id: string;
   schedule: ScheduleInput;
@@ -758,6 +770,10 @@ function ScheduleRow(props: {
   const { id, schedule: s, update, mark } = props;
   const p = `deal.schedules.${id}`;
   const explicit = 'dates' in s;
+  const roll = s.roll ?? 'none';
+  const withRoll = (x: ScheduleInput): ScheduleInput => (roll === 'none' ? x : { ...x, roll });
+  // Issues of single dates (e.g. a year fraction that cannot be rolled) are shown at the dates field.
+  for (const f of useContext(IssueContext).keys()) if (f.startsWith(`${p}.dates[`)) mark(f);
   return (
     <div className="kv schedule">
       <KeyField
@@ -779,8 +795,9 @@ function ScheduleRow(props: {
         onChange={(v) =>
           update(
             (d) =>
-              void (d.schedules[id] =
-                v === 'dates' ? { dates: [] } : { start: d.valuationDate ?? '', end: '', every: '1Y' }),
+              void (d.schedules[id] = withRoll(
+                v === 'dates' ? { dates: [] } : { start: d.valuationDate ?? '', end: '', every: '1Y' },
+              )),
           )
         }
       />
@@ -789,17 +806,18 @@ function ScheduleRow(props: {
           label="Dates (comma separated: YYYY-MM-DD or years)"
           path={mark(`${p}.dates`)}
           wide
+          itemIssues
           value={s.dates.join(', ')}
           onChange={(v) =>
             update(
               (d) =>
-                void (d.schedules[id] = {
+                void (d.schedules[id] = withRoll({
                   dates: v
                     .split(',')
                     .map((x) => x.trim())
                     .filter(Boolean)
                     .map((x) => (/^[+-]?(\d+\.?\d*|\.\d+)$/.test(x) ? Number(x) : x)),
-                }),
+                })),
             )
           }
         />
@@ -810,6 +828,7 @@ function ScheduleRow(props: {
             path={mark(`${p}.start`)}
             compact
             value={String(s.start)}
+            placeholder="YYYY-MM-DD"
             onChange={(v) => update((d) => void ((d.schedules[id] as { start: string }).start = v))}
           />
           <TextField
@@ -817,10 +836,11 @@ function ScheduleRow(props: {
             path={mark(`${p}.end`)}
             compact
             value={String(s.end)}
+            placeholder="YYYY-MM-DD"
             onChange={(v) => update((d) => void ((d.schedules[id] as { end: string }).end = v))}
           />
           <TextField
-            label="Step (1M, 3M, 1Y, 1B…)"
+            label="Step (1M, 3M, 1Y, 5B business days…)"
             path={mark(`${p}.every`)}
             compact
             value={s.every}
@@ -828,6 +848,20 @@ function ScheduleRow(props: {
           />
         </>
       )}
+      <SelectField
+        label="Date not a business day"
+        path={mark(`${p}.roll`)}
+        compact
+        value={roll}
+        options={ROLL_OPTIONS}
+        onChange={(v) =>
+          update((d) => {
+            const x = d.schedules[id]!;
+            if (v === 'none') delete x.roll;
+            else x.roll = v;
+          })
+        }
+      />
       <button
         className="icon"
         aria-label={`Remove schedule ${id}`}
@@ -928,7 +962,7 @@ function EventCard(props: {
               path={mark(`${pp}.currency`)}
               compact
               value={pay.currency ?? ''}
-              placeholder="deal's"
+              placeholder="currency (deal's if empty)"
               onChange={(v) =>
                 update((d) =>
                   setPays(
