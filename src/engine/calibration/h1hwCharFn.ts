@@ -16,7 +16,7 @@ import type { HestonParams, HullWhiteParams } from '../simulation/types.ts';
 import type { LogCharFn, LogCharFnGrid } from './cosPricer.ts';
 import { hestonLogChf } from './hestonCharFn.ts';
 import { hwB, hwSigmaAt, integratePieces } from './hullWhiteBondVol.ts';
-import { exp, log, pow, sin } from '../math/detMath.ts';
+import { exp, log, sin } from '../math/detMath.ts';
 import { hestonCumulants } from '../models/hestonCos.ts';
 import { hestonExponentGrid } from '../models/hestonCharFn.ts';
 
@@ -34,6 +34,12 @@ export function logGamma(x: number): number {
   return 0.5 * log(2 * Math.PI) + (z + 0.5) * log(t) - t + log(a);
 }
 
+/** E[√v(t)] and its time derivative d/dt E[√v(t)] (per year). */
+export interface SqrtVarianceAt {
+  value: number;
+  slope: number;
+}
+
 /**
  * E[√v(t)] for the CIR variance of Heston: v(t) = c̄·χ′²(δ, λ̄) with c̄ = σ²(1 − e^{−κt})/(4κ), δ = 4κθ/σ²,
  * λ̄ = 4κ v0 e^{−κt}/(σ²(1 − e^{−κt})) (Cox, Ingersoll & Ross 1985), so
@@ -41,34 +47,76 @@ export function logGamma(x: number): number {
  * For λ̄ > 2·10⁴ (t → 0) the delta method √m − Var/(8 m^{3/2}) is used (common practice).
  */
 export function expectedSqrtVariance(p: HestonParams, t: number): number {
+  return expectedSqrtVarianceWithSlope(p, t).value;
+}
+
+/**
+ * {@link expectedSqrtVariance} with its exact time derivative from the same series. With μ = λ̄/2, π_k the Poisson(μ)
+ * weights and R_k = Γ(k + (δ+1)/2)/Γ(k + δ/2):
+ *   E√v = √(2c̄)·Σ π_k R_k,  d/dt E√v = (√(2c̄))′·Σ π_k R_k + √(2c̄)·μ′·Σ π_k (R_{k+1} − R_k),
+ * since dπ_k/dμ = π_{k−1} − π_k; R_{k+1} − R_k = R_k·½/(k + δ/2), c̄′ = σ²e^{−κt}/4 and
+ * μ′ = −2κ²v0 e^{−κt}/(σ²(1 − e^{−κt})²) (the series above differentiated term by term). The sum runs outward from
+ * the Poisson mode with the term ratios μ/(k+1)·(k + (δ+1)/2)/(k + δ/2) (no logarithm per term), about 20√μ + 40
+ * multiplications. In the delta-method range the derivative of that formula is used.
+ */
+export function expectedSqrtVarianceWithSlope(p: HestonParams, t: number): SqrtVarianceAt {
   const { v0, kappa, theta, sigma } = p;
-  if (t <= 0) return Math.sqrt(v0);
-  const e = exp(-kappa * t);
-  const cbar = (sigma * sigma * (1 - e)) / (4 * kappa);
-  const delta = (4 * kappa * theta) / (sigma * sigma);
-  const lam = (4 * kappa * v0 * e) / (sigma * sigma * (1 - e));
-  if (!(lam <= 2e4)) {
-    const m = v0 * e + theta * (1 - e);
-    const v =
-      (v0 * sigma * sigma * e * (1 - e)) / kappa +
-      (theta * sigma * sigma * ((1 - e) * (1 - e))) / (2 * kappa);
-    return Math.sqrt(m) - v / (8 * pow(m, 1.5));
+  const s2 = sigma * sigma;
+  if (t <= 0) {
+    // Itô at t = 0: d E√v/dt = κ(θ − v0)/(2√v0) − σ²/(8√v0) (generator of the CIR process applied to √v).
+    const r = Math.sqrt(v0);
+    return { value: r, slope: (kappa * (theta - v0)) / (2 * r) - s2 / (8 * r) };
   }
-  const half = 0.5 * lam;
+  const e = exp(-kappa * t);
+  const ome = 1 - e;
+  const cbar = (s2 * ome) / (4 * kappa);
+  const delta = (4 * kappa * theta) / s2;
+  const lam = (4 * kappa * v0 * e) / (s2 * ome);
+  if (!(lam <= 2e4)) {
+    // Delta method f = √m − V/(8 m^{3/2}) with m = E v(t), V = Var v(t) (CIR moments, Cox, Ingersoll & Ross 1985).
+    const m = v0 * e + theta * ome;
+    const dm = kappa * e * (theta - v0);
+    const V = (v0 * s2 * e * ome) / kappa + (theta * s2 * ome * ome) / (2 * kappa);
+    const dV = v0 * s2 * e * (2 * e - 1) + theta * s2 * ome * e;
+    const sm = Math.sqrt(m);
+    const m15 = m * sm;
+    return {
+      value: sm - V / (8 * m15),
+      slope: dm / (2 * sm) - dV / (8 * m15) + (3 * V * dm) / (16 * m15 * m),
+    };
+  }
+  const mu = 0.5 * lam;
   const a = 0.5 * (delta + 1);
   const b = 0.5 * delta;
-  let logTerm = -half + logGamma(a) - logGamma(b);
-  let sum = exp(logTerm);
-  const kMin = half + 10 * Math.sqrt(half) + 20;
-  const logHalf = half > 0 ? log(half) : -Infinity;
-  for (let k = 1; k < 200000; k++) {
-    logTerm += logHalf - log(k) + log(k - 1 + a) - log(k - 1 + b);
-    const term = exp(logTerm);
-    sum += term;
-    if (k > kMin && term < 1e-17 * sum) break;
-    if (half === 0) break;
+  // Mode term π_{k*} R_{k*}, k* = ⌊μ⌋, in logs (ln Γ by Lanczos), then ratios outward.
+  const k0 = Math.floor(mu);
+  const logMode = (mu > 0 ? -mu + k0 * log(mu) - logGamma(k0 + 1) : 0) + logGamma(k0 + a) - logGamma(k0 + b);
+  const t0 = exp(logMode);
+  let sum = t0; // Σ π_k R_k
+  let dsum = t0 / (k0 + b); // Σ π_k R_k/(k + b) = 2 Σ π_k (R_{k+1} − R_k)
+  const spread = 10 * Math.sqrt(mu) + 20;
+  if (mu > 0) {
+    // Upward: term_{k+1} = term_k · μ/(k+1) · (k+a)/(k+b).
+    let term = t0;
+    for (let k = k0; k < k0 + 200000; k++) {
+      term *= ((mu / (k + 1)) * (k + a)) / (k + b);
+      sum += term;
+      dsum += term / (k + 1 + b);
+      if (k - k0 > spread && term < 1e-17 * sum) break;
+    }
+    // Downward: term_{k−1} = term_k · k/μ · (k − 1 + b)/(k − 1 + a).
+    term = t0;
+    for (let k = k0; k > 0; k--) {
+      term *= ((k / mu) * (k - 1 + b)) / (k - 1 + a);
+      sum += term;
+      dsum += term / (k - 1 + b);
+      if (k0 - k > spread && term < 1e-17 * sum) break;
+    }
   }
-  return Math.sqrt(2 * cbar) * sum;
+  const root = Math.sqrt(2 * cbar);
+  const dRoot = (s2 * e) / (4 * root);
+  const dMu = (-2 * kappa * kappa * v0 * e) / (s2 * ome * ome);
+  return { value: root * sum, slope: dRoot * sum + root * dMu * 0.5 * dsum };
 }
 
 /** Rate inputs of the H1-HW characteristic function. */
@@ -80,20 +128,88 @@ export interface H1HwRates {
   sqrtV?: (t: number) => number;
 }
 
+/** Absolute tolerance on E[√v] of {@link sqrtVarianceTable} (see there). */
+export const SQRT_VARIANCE_TABLE_TOL = 5e-9;
+
 /**
- * E[√v(t)] on [0, tMax] tabulated at 65 nodes uniform in √t and interpolated linearly (the function is smooth; the
- * √t spacing follows its fast change near 0). Lets every expiry of a calibration share one set of series sums.
+ * E[√v(t)] on [0, tMax] as a table in s = √t interpolated by cubic Hermite polynomials with the exact slopes
+ * dE√v/ds = 2s·dE√v/dt of {@link expectedSqrtVarianceWithSlope} (interpolation error O(h⁴), bound h⁴/384·max|g⁗|:
+ * C. de Boor, "A Practical Guide to Splines", Springer 1978, Ch. IV). The nodes adapt to the parameters: 16
+ * intervals uniform in √t are bisected while the Hermite value at an interval's midpoint misses the exact series
+ * there by more than `tol` (default {@link SQRT_VARIANCE_TABLE_TOL}), up to 12 levels; the midpoint of an accepted
+ * interval is kept as a node too, so the error left is about tol/16 (common practice for adaptive interpolation).
+ * E√v changes fast where the variance law moves from near-Gaussian to its stationary shape (t of order 4v0/σ²), which
+ * a fixed grid misses for large vol of variance. Lets every expiry of a calibration share one set of series sums;
+ * beyond tMax the exact series is evaluated.
  */
-export function sqrtVarianceTable(p: HestonParams, tMax: number): (t: number) => number {
-  const n = 64;
-  const s = Array.from({ length: n + 1 }, (_, i) => (i / n) * Math.sqrt(tMax));
-  const vals = s.map((x) => expectedSqrtVariance(p, x * x));
+export function sqrtVarianceTable(
+  p: HestonParams,
+  tMax: number,
+  tol = SQRT_VARIANCE_TABLE_TOL,
+): (t: number) => number {
+  const sMax = Math.sqrt(Math.max(tMax, 0));
+  if (!(sMax > 0)) return (t: number) => expectedSqrtVariance(p, t);
+  const S: number[] = [];
+  const V: number[] = [];
+  const D: number[] = []; // dE√v/ds
+  const at = (s: number) => {
+    const r = expectedSqrtVarianceWithSlope(p, s * s);
+    return { s, v: r.value, d: 2 * s * r.slope };
+  };
+  const hermiteMid = (l: { v: number; d: number }, r: { v: number; d: number }, h: number) =>
+    0.5 * (l.v + r.v) + 0.125 * h * (l.d - r.d);
+  const push = (n: { s: number; v: number; d: number }) => {
+    S.push(n.s);
+    V.push(n.v);
+    D.push(n.d);
+  };
+  /** Appends the nodes of (l, r] (l already appended). */
+  const refine = (
+    l: { s: number; v: number; d: number },
+    r: { s: number; v: number; d: number },
+    depth: number,
+  ) => {
+    const h = r.s - l.s;
+    const m = at(0.5 * (l.s + r.s));
+    if (depth >= 12 || Math.abs(hermiteMid(l, r, h) - m.v) <= tol) {
+      push(m);
+      push(r);
+      return;
+    }
+    refine(l, m, depth + 1);
+    refine(m, r, depth + 1);
+  };
+  const n0 = 16;
+  let left = at(0);
+  push(left);
+  for (let i = 1; i <= n0; i++) {
+    const right = at((i / n0) * sMax);
+    refine(left, right, 0);
+    left = right;
+  }
+  const nS = S.length;
   return (t: number) => {
     const x = Math.sqrt(Math.max(t, 0));
-    const h = Math.sqrt(tMax) / n;
-    const i = Math.min(Math.floor(x / h), n - 1);
-    const w = (x - s[i]!) / h;
-    return (1 - w) * vals[i]! + w * vals[i + 1]!;
+    if (!(x <= sMax)) return expectedSqrtVariance(p, t);
+    // Interval [S[i], S[i+1]] holding x, by bisection.
+    let lo = 0;
+    let hi = nS - 1;
+    while (hi - lo > 1) {
+      const mid = (lo + hi) >> 1;
+      if (S[mid]! <= x) lo = mid;
+      else hi = mid;
+    }
+    const h = S[hi]! - S[lo]!;
+    const w = (x - S[lo]!) / h;
+    const w2 = w * w;
+    const w3 = w2 * w;
+    // Cubic Hermite basis on [0, 1].
+    return (
+      (2 * w3 - 3 * w2 + 1) * V[lo]! +
+      (w3 - 2 * w2 + w) * h * D[lo]! +
+      (3 * w2 - 2 * w3) * V[hi]! +
+      (w3 - w2) * h * D[hi]!
+    );
   };
 }
 

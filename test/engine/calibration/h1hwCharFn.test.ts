@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import {
   expectedSqrtVariance,
+  expectedSqrtVarianceWithSlope,
+  sqrtVarianceTable,
   h1hwExtraVariance,
   h1hwLogChf,
   logGamma,
@@ -194,4 +196,102 @@ describe('H1-HW against Monte Carlo of the full Heston–Hull–White model (ρ(
       });
     });
   }
+});
+
+describe('E[√v(t)] table of the H1-HW refit', () => {
+  // Parameter sets: the Grzelak case of published.md §2 (both σ_v), the Fang–Oosterlee (2008) Heston set, Andersen
+  // (2008) Case I (published.md §1), and constructed extremes (v0 ≪ θ with σ at its bound, v0 ≫ θ, tiny σ).
+  const SETS: HestonParams[] = [
+    { v0: 0.05, kappa: 0.3, theta: 0.05, sigma: 0.6, rho: -0.3 },
+    { v0: 0.05, kappa: 0.3, theta: 0.05, sigma: 0.3, rho: -0.3 },
+    { v0: 0.0175, kappa: 1.5768, theta: 0.0398, sigma: 0.5751, rho: -0.5711 },
+    { v0: 0.04, kappa: 0.5, theta: 0.04, sigma: 1, rho: -0.9 },
+    { v0: 0.02, kappa: 1.2, theta: 0.05, sigma: 0.45, rho: -0.65 },
+    { v0: 0.01, kappa: 5, theta: 0.09, sigma: 2, rho: -0.7 },
+    { v0: 1e-4, kappa: 15, theta: 0.04, sigma: 3, rho: 0 },
+    { v0: 0.2, kappa: 0.05, theta: 0.01, sigma: 0.02, rho: 0 },
+    { v0: 0.09, kappa: 10, theta: 1e-4, sigma: 0.1, rho: 0 },
+  ];
+
+  it('has a slope that matches central differences of the series (second method) at many t', () => {
+    for (const p of SETS)
+      for (const t of [0.003, 0.05, 0.4, 2, 9, 25]) {
+        const h = 1e-4 * t;
+        const fd = (expectedSqrtVariance(p, t + h) - expectedSqrtVariance(p, t - h)) / (2 * h);
+        const got = expectedSqrtVarianceWithSlope(p, t).slope;
+        const info = `${JSON.stringify(p)} t=${t}: slope ${got}, differences ${fd}`;
+        // Central differences with h = 1e-4·t: the series' ln Γ of large arguments (λ̄/2 up to 10⁴ at small t)
+        // carries ~1e-11 relative noise, so the differences are good to ~1e-11/h plus O(h²).
+        expect(Math.abs(got - fd), info).toBeLessThan(1e-5 * Math.max(1, Math.abs(fd)));
+      }
+  });
+
+  it('starts at √v0 with the Itô slope κ(θ − v0)/(2√v0) − σ²/(8√v0) (limit t → 0)', () => {
+    // Itô's formula for √v under the CIR dynamics (common practice).
+    for (const p of SETS.slice(0, 6)) {
+      const at0 = expectedSqrtVarianceWithSlope(p, 0);
+      const want =
+        (p.kappa * (p.theta - p.v0)) / (2 * Math.sqrt(p.v0)) - p.sigma ** 2 / (8 * Math.sqrt(p.v0));
+      expect(at0.value).toBe(Math.sqrt(p.v0));
+      expect(Math.abs(at0.slope - want)).toBeLessThan(1e-14);
+      const small = expectedSqrtVarianceWithSlope(p, 1e-6);
+      expect(Math.abs(small.slope - want), JSON.stringify(p)).toBeLessThan(1e-2 * Math.abs(want) + 1e-4);
+    }
+  });
+
+  it('interpolates the exact series within 1e-8 at 2000 points for tMax 1, 10 and 30', () => {
+    for (const p of SETS)
+      for (const tMax of [1, 10, 30]) {
+        const tab = sqrtVarianceTable(p, tMax);
+        let worst = 0;
+        let at = 0;
+        for (let i = 0; i <= 2000; i++) {
+          const t = tMax * (i / 2000) ** 1.5;
+          const e = Math.abs(tab(t) - expectedSqrtVariance(p, t));
+          if (e > worst) [worst, at] = [e, t];
+        }
+        expect(worst, `${JSON.stringify(p)} tMax=${tMax}: worst ${worst} at t=${at}`).toBeLessThan(1e-8);
+      }
+  });
+
+  /** H1-HW prices of one expiry with the tabulated and with the exact E√v, the same COS setup (1024 terms). */
+  const pricePair = (p: HestonParams, T: number, hw: HullWhiteParams, rhoSR: number, strikes: number[]) => {
+    const df = Math.exp(-0.02 * T);
+    const rates = { hw, rhoSR };
+    const run = (sqrtV?: (t: number) => number) =>
+      cosCallPrices({
+        logChf: h1hwLogChf(p, T, sqrtV ? { ...rates, sqrtV } : rates),
+        forward: 1 / df,
+        df,
+        strikes,
+        terms: 1024,
+      });
+    return { table: run(sqrtVarianceTable(p, T)), exact: run() };
+  };
+
+  it('moves H1-HW prices by at most 1e-7 (spot 1) on the published.md §2 cases against the exact series', () => {
+    // published.md §2: Grzelak thesis case via QuantLib test-suite, S0 = 1 here (strikes 0.4 … 1.8), r = 2 %, T = 10,
+    // v0 = θ = 0.05, κ = 0.3, ρ_Sv = −0.3, ρ_Sr = 0.6, a = 0.01, σ_r = 0.01, σ_v = 0.3 and 0.6.
+    for (const sv of [0.3, 0.6]) {
+      const p = { v0: 0.05, kappa: 0.3, theta: 0.05, sigma: sv, rho: -0.3 };
+      const { table, exact } = pricePair(p, 10, { a: 0.01, sigma: 0.01 }, 0.6, [0.4, 0.8, 1, 1.2, 1.8]);
+      table.forEach((x, i) =>
+        expect(Math.abs(x - exact[i]!), `σ_v=${sv} K index ${i}: table ${x}, exact ${exact[i]}`).toBeLessThan(
+          1e-7,
+        ),
+      );
+    }
+  });
+
+  it('moves H1-HW prices by at most 1e-7 (spot 1) for T up to 30 over the parameter sets and ρ(S,r) = ±0.8', () => {
+    for (const p of SETS)
+      for (const T of [2, 10, 30])
+        for (const rhoSR of [0.8, -0.8]) {
+          const { table, exact } = pricePair(p, T, { a: 0.02, sigma: 0.012 }, rhoSR, [0.5, 1, 2]);
+          table.forEach((x, i) => {
+            const info = `${JSON.stringify(p)} T=${T} ρSr=${rhoSR} K index ${i}: table ${x}, exact ${exact[i]}`;
+            if (Number.isFinite(exact[i]!)) expect(Math.abs(x - exact[i]!), info).toBeLessThan(1e-7);
+          });
+        }
+  });
 });
