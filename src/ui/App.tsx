@@ -5,6 +5,8 @@
 import { useCallback, useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import { isApiError, type EngineClient } from '../engine/api/index.ts';
 import { APP_CAUTION } from './caution.ts';
+import { PrintView } from './components/PrintView.tsx';
+import { printReport } from './platform/printReport.ts';
 import { platform } from './platform/current.ts';
 import { AppContext, errorText, type AppApi, type Notice, type TaskState } from './state/appContext.ts';
 import {
@@ -253,6 +255,29 @@ export function App(props: { engine: EngineClient }) {
     [engine, notify],
   );
 
+  // The report in the browser's print dialog, or (desktop) printed to a PDF file by the shell.
+  const [printHtml, setPrintHtml] = useState<string | null>(null);
+  const printStudyReport = useCallback(async () => {
+    const d = docRef.current;
+    if (!d.study) {
+      notify('error', 'There is no study to print yet: run one on the Triage screen or open a saved study.');
+      return;
+    }
+    try {
+      const { html } = await engine.call('report.render', { study: d.study });
+      const r = await printReport({
+        platform,
+        html,
+        suggestedName: suggestedName(d) + ' report',
+        openPrintView: setPrintHtml,
+      });
+      if (r.kind === 'pdf') notify('success', `Report written: ${r.target.name}.`);
+    } catch (e) {
+      notify('error', `The report was not printed: ${errorText(e)}`);
+    }
+  }, [engine, notify]);
+  const closePrint = useCallback(() => setPrintHtml(null), []);
+
   const api: AppApi = useMemo(
     () => ({
       doc,
@@ -268,6 +293,7 @@ export function App(props: { engine: EngineClient }) {
       openStudyText,
       saveStudy,
       exportReport,
+      printReport: printStudyReport,
       served,
     }),
     [
@@ -281,6 +307,7 @@ export function App(props: { engine: EngineClient }) {
       openStudyText,
       saveStudy,
       exportReport,
+      printStudyReport,
       served,
     ],
   );
@@ -435,6 +462,7 @@ export function App(props: { engine: EngineClient }) {
             ))}
           </div>
         </div>
+        {printHtml !== null && <PrintView html={printHtml} onClose={closePrint} />}
       </RawContext.Provider>
     </AppContext.Provider>
   );

@@ -192,6 +192,80 @@ describe('browser build', () => {
     }
   });
 
+  it('a schedule rolls off non-business days of a holiday list typed as text; a bad holiday is named at the list and the text stays', async () => {
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.pickTemplate('autocallable-memory');
+      const roll = 'deal.schedules.quarterly.roll';
+      await app.page.selectOption(`[data-path="${roll}"]`, 'modifiedFollowing');
+      await app.page.waitForFunction(() =>
+        document.querySelector('[data-testid=deal-calendar]')?.textContent?.includes('This deal uses it'),
+      );
+      const list = '[data-path="deal.calendar.holidays"]';
+      const typed = 'date,name\n2026-12-25,Winter break\n2027-02-30,Founders day';
+      await app.page.fill(list, typed);
+      await app.page.waitForSelector('[data-testid=calendar-problems]', { timeout: 10_000 });
+      expect(await app.page.textContent('[data-testid=calendar-problems]')).toMatch(
+        /Holiday 2 \(line 3\): .*write it YYYY-MM-DD/,
+      );
+      expect(await app.page.inputValue(list)).toBe(typed);
+      expect(await app.page.textContent('[data-testid=deal-status]')).toMatch(/1 problem/);
+      await app.shot(shots, 'deal-calendar', '[data-testid=deal-calendar]');
+      await app.page.fill(list, typed.replace('2027-02-30', '2027-02-26'));
+      await app.page.waitForFunction(() =>
+        document.querySelector('[data-testid=deal-status]')?.textContent?.includes('No problems'),
+      );
+      expect(await app.page.$('[data-testid=calendar-problems]')).toBeNull();
+      // The roll survives editing the schedule's other fields.
+      await app.fill('deal.schedules.quarterly.every', '6M');
+      expect(await app.page.inputValue(`[data-path="${roll}"]`)).toBe('modifiedFollowing');
+    } finally {
+      await app.close();
+    }
+  });
+
+  it('Print / save as PDF opens the whole report ready to print with the caution, calls print, and Escape returns', async () => {
+    const app = await AppPage.open(browser, url);
+    try {
+      await app.page.evaluate(() => {
+        const w = window as unknown as { __prints: number };
+        w.__prints = 0;
+        window.print = () => void (w.__prints += 1);
+      });
+      await app.page.waitForSelector('[data-testid=study-results]', { timeout: 30_000 });
+      await app.screen('review');
+      const refused: string[] = [];
+      app.page.on('console', (m) => {
+        if (m.type() === 'error' && /Content Security Policy/.test(m.text())) refused.push(m.text());
+      });
+      await app.page.click('[data-testid=print-report]');
+      await app.page.waitForSelector('[data-testid=print-view]', { timeout: 20_000 });
+      await app.page.waitForFunction(() => (window as unknown as { __prints: number }).__prints === 1);
+      expect(await app.page.textContent('[data-testid=print-caution]')).toMatch(/not investment advice/);
+      const report = await app.page.$eval('[data-testid=print-report-body]', (el) => ({
+        text: el.shadowRoot?.textContent ?? '',
+        sections: el.shadowRoot?.querySelectorAll('h2').length ?? 0,
+        styled: el.shadowRoot ? getComputedStyle(el.shadowRoot.querySelector('main')!).maxWidth : '',
+      }));
+      expect(report.text).toMatch(/not investment advice/);
+      expect(report.text).toMatch(/Limitations/);
+      expect(report.sections).toBeGreaterThan(5);
+      expect(report.styled, 'the report keeps its own styles under the page policy').toBe('980px');
+      expect(refused, 'nothing of the report is refused by the page policy').toEqual([]);
+      // On paper only the report: the app frame is hidden by the print style sheet.
+      await app.page.emulateMedia({ media: 'print' });
+      expect(await app.page.$eval('.frame', (el) => getComputedStyle(el).display)).toBe('none');
+      await app.page.emulateMedia({ media: 'screen' });
+      await app.shot(shots, 'print-view');
+      await app.page.keyboard.press('Escape');
+      await app.page.waitForSelector('[data-testid=print-view]', { state: 'detached' });
+      expect(await app.page.isVisible('[data-testid=print-report-body]')).toBe(false);
+      expect(app.errors).toEqual([]);
+    } finally {
+      await app.close();
+    }
+  });
+
   it('a bad number keeps the typed text with a message beside the field, also after a reload', async () => {
     const app = await AppPage.open(browser, url);
     try {
@@ -422,6 +496,10 @@ describe('browser build', () => {
     const app = await AppPage.open(browser, url);
     try {
       await app.page.waitForSelector('[data-testid=study-results]', { timeout: 30_000 });
+      // Hedge-ratio verdicts carry their budget: delta and rho from step halving, vega none.
+      const greekRow = (g: string) => app.page.textContent(`[data-testid=greek-verdict-${g}-stochVol]`);
+      expect(await greekRow('delta')).toMatch(/±/);
+      expect(await greekRow('vega')).toMatch(/none.*not checked \(vega\)/);
       await app.screen('review');
       const file = await app.download('[data-testid=export-html]', work);
       const html = fs.readFileSync(file, 'utf8');

@@ -59,7 +59,9 @@ export const platform: Platform = {
   },
   async exportReport({ html, suggestedName, format }) {
     if (format === 'pdf')
-      throw new Error('the browser build exports HTML; open it and print to PDF from the browser');
+      throw new Error(
+        'the browser build does not write PDF files itself: use "Print / save as PDF" on the Review screen and choose "Save as PDF" in the print dialog',
+      );
     const name = withExt(suggestedName, '.html');
     download(name, html, 'text/html');
     return { name, handle: null };

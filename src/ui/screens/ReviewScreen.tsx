@@ -126,8 +126,8 @@ export function ReviewScreen() {
                 {String(s.input.settings.seed)} · {s.input.settings.paths}
               </dd>
               <dt>Content hash</dt>
-              <dd className="mono hash" title={s.hash}>
-                {s.hash.slice(0, 16)}…{' '}
+              <dd className="hash" title={s.hash}>
+                <span className="mono">{s.hash.slice(0, 16)}…</span>{' '}
                 {hashOk === null ? (
                   ''
                 ) : hashOk ? (
@@ -139,6 +139,12 @@ export function ReviewScreen() {
             </dl>
           ) : (
             <p className="empty">No study is open. Open a saved study, or run one on the Triage screen.</p>
+          )}
+          {s && doc.stale && (
+            <p className="msg-warn" data-testid="review-stale">
+              The deal, market or settings were edited after this study was made: verifying, saving and the
+              report use the study as it was run. Run it again on the Triage screen to include the edits.
+            </p>
           )}
           <div className="button-row">
             <button onClick={() => void app.openStudyFile()} data-testid="review-open">
@@ -291,14 +297,15 @@ export function ReviewScreen() {
             <button onClick={() => void app.exportReport('html')} disabled={!s} data-testid="export-html">
               Export report (HTML)
             </button>
-            {platform.canExportPdf ? (
-              <button onClick={() => void app.exportReport('pdf')} disabled={!s} data-testid="export-pdf">
-                Export report (PDF)
-              </button>
-            ) : (
-              <span className="hint">For a PDF, open the HTML report and print it from the browser.</span>
-            )}
+            <button onClick={() => void app.printReport()} disabled={!s} data-testid="print-report">
+              {platform.canExportPdf ? 'Print / save as PDF…' : 'Print / save as PDF'}
+            </button>
           </div>
+          <p className="hint">
+            {platform.canExportPdf
+              ? 'The PDF is printed from the same report, A4, with its charts and the caution.'
+              : 'Opens the report ready to print and the print dialog; choose “Save as PDF” there for a file.'}
+          </p>
         </section>
       </div>
 

@@ -22,6 +22,13 @@ const SHORT: Record<string, string> = {
   foreignRate: 'Foreign rate',
 };
 
+/** Hedge ratios with the move they are quoted per (as the study computes them). */
+const GREEK_LABEL: Record<'delta' | 'vega' | 'rho', string> = {
+  delta: 'delta, per 1% spot',
+  vega: 'vega, per vol point',
+  rho: 'rho, per bp of the domestic curve',
+};
+
 function factorName(f: string): string {
   return SHORT[f] ?? f;
 }
@@ -422,13 +429,17 @@ const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stal
                   <dd>
                     {num(d.delta, 4)} ± {num(d.z * d.se, 3)} {ccy}
                   </dd>
-                  <dt>budget b</dt>
+                  <dt>error budget b</dt>
                   <dd data-testid={`budget-${v.factor}`}>
-                    {num(d.budget, 3)}
+                    {num(d.budget, 3)} {ccy}
                     {((p) =>
-                      p
-                        ? ` = step halving ${num(p.stepHalving, 2)} + calibration ${num(p.calibration, 2)} + repricing ${num(p.repricing ?? 0, 2)}${p.exerciseGap === null ? '' : ` + exercise gap ${num(p.exerciseGap, 2)}`}`
-                        : '')(r.budgetParts?.[v.factor])}
+                      p ? (
+                        <span className="budget-parts">
+                          step halving {num(p.stepHalving, 2)} + calibration {num(p.calibration, 2)} +
+                          repricing {num(p.repricing ?? 0, 2)}
+                          {p.exerciseGap === null ? '' : ` + exercise gap ${num(p.exerciseGap, 2)}`}
+                        </span>
+                      ) : null)(r.budgetParts?.[v.factor])}
                   </dd>
                   <dt>decided at</dt>
                   <dd>
@@ -521,28 +532,43 @@ const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stal
 
       {r.greekVerdicts.length > 0 && (
         <section>
-          <h2>Hedge ratios</h2>
+          <h2>Hedge ratios: does each factor move them materially?</h2>
+          <p className="hint">
+            Δ is the change of the hedge ratio when the factor is switched off, in {ccy}; it is kept when |Δ|
+            − z·SE − b exceeds the threshold, dropped when |Δ| + z·SE + b stays below it. The budget b of
+            delta and rho comes from halving the time step on the same random numbers; vega carries none.
+          </p>
           <table className="data" data-testid="greek-verdicts">
             <thead>
               <tr>
-                <th>Ratio</th>
+                <th>Hedge ratio</th>
                 <th>Factor</th>
                 <th>Verdict</th>
-                <th className="num">Δ</th>
+                <th className="num">Δ ({ccy})</th>
                 <th className="num">± z·SE</th>
-                <th className="num">Threshold</th>
+                <th className="num">Budget b</th>
+                <th className="num">Step halved: change ± SE</th>
+                <th className="num">Threshold ({ccy})</th>
               </tr>
             </thead>
             <tbody>
               {r.greekVerdicts.map((gv, k) => (
-                <tr key={k}>
-                  <td>{gv.greek}</td>
+                <tr key={k} data-testid={`greek-verdict-${gv.greek}-${gv.factor}`}>
+                  <td>{GREEK_LABEL[gv.greek]}</td>
                   <td>{factorName(gv.factor)}</td>
                   <td>
                     <VerdictMark verdict={gv.decision.verdict} />
                   </td>
                   <td className="num">{num(gv.decision.delta, 4)}</td>
                   <td className="num">{num(gv.decision.z * gv.decision.se, 3)}</td>
+                  <td className="num">{gv.stepHalvingChange ? num(gv.decision.budget, 3) : 'none'}</td>
+                  <td className="num">
+                    {gv.stepHalvingChange
+                      ? `${num(gv.stepHalvingChange.value, 3)} ± ${num(gv.stepHalvingChange.se, 2)}`
+                      : gv.greek === 'vega'
+                        ? 'not checked (vega)'
+                        : 'not in this file'}
+                  </td>
                   <td className="num">{num(gv.threshold, 3)}</td>
                 </tr>
               ))}
@@ -558,9 +584,9 @@ const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stal
             <thead>
               <tr>
                 <th>Variant</th>
-                <th className="num">Delta (per 1% spot)</th>
-                <th className="num">Vega (per vol point)</th>
-                <th className="num">Rho (per bp)</th>
+                <th className="num">Delta ({ccy} per 1% spot)</th>
+                <th className="num">Vega ({ccy} per vol point)</th>
+                <th className="num">Rho ({ccy} per bp)</th>
               </tr>
             </thead>
             <tbody>

@@ -33,6 +33,8 @@ export interface AppApi {
   openStudyText(name: string, text: string, handle: string | null): Promise<boolean>;
   saveStudy(saveAs: boolean): Promise<void>;
   exportReport(format: 'html' | 'pdf'): Promise<void>;
+  /** Prints the report: a PDF file through the desktop shell, or the browser's print dialog on a print view. */
+  printReport(): Promise<void>;
   /** Methods the engine worker serves (e.g. whether studies can run in this build). */
   served: Set<string>;
 }
