@@ -23,7 +23,7 @@
  * correlated Hull–White rates the within-step residuals of ∫x (beyond their Brownian increments) are independent.
  */
 import type { DiscountCurve } from '../market/types.ts';
-import type { EquitySpec, PathBatch, VariantSpec } from './types.ts';
+import type { EquitySpec, PathBatch, SimulationStart, VariantSpec } from './types.ts';
 import {
   EngineError,
   fail,
@@ -63,13 +63,18 @@ export interface PreparedVariant {
   readonly drivers: readonly string[];
   /** Warnings found while preparing (e.g. a Heston parameter set that violates the Feller condition). */
   readonly warnings: readonly FieldIssue[];
-  /** Simulates `nPaths` paths from `normals` (layout [step][slot][path], as {@link normalsBlockSize}). */
-  simulate(normals: Float64Array, nPaths: number): PathBatch;
+  /**
+   * Simulates `nPaths` paths from `normals` (layout [step][slot][path], as {@link normalsBlockSize}). With `start`,
+   * every new path continues path `start.path` of `start.from` from grid step `start.step`: the grid points up to it
+   * are copied from that path and `normals` holds only the steps from `start.step` on (length
+   * {@link normalsBlockSize} with `fromStep`; step k at offset (k − start.step) · width · nPaths).
+   */
+  simulate(normals: Float64Array, nPaths: number, start?: SimulationStart): PathBatch;
 }
 
-/** Length of the normals block of a batch: steps × layout width × paths. */
-export function normalsBlockSize(grid: TimeGrid, layout: DriverLayout, nPaths: number): number {
-  return (grid.times.length - 1) * layout.width * nPaths;
+/** Length of the normals block of a batch: steps (from grid step `fromStep` on, default 0) × layout width × paths. */
+export function normalsBlockSize(grid: TimeGrid, layout: DriverLayout, nPaths: number, fromStep = 0): number {
+  return (grid.times.length - 1 - fromStep) * layout.width * nPaths;
 }
 
 /** Times where a model parameter of the variants changes (to be put on the grid). */
@@ -353,9 +358,44 @@ export function prepareVariant(
   const slots = drivers.map((d) => layout.slotOf(d));
   const width = layout.width;
 
-  const simulate = (normals: Float64Array, n: number): PathBatch => {
+  /** Validates a start option against this variant and grid; returns the start step. */
+  const checkStart = (start: SimulationStart): number => {
+    const { from, path, step } = start;
+    if (!(Number.isInteger(step) && step >= 0 && step <= nSteps))
+      fail('E_BAD_STEP_INDEX', 'start.step', `must be a grid index 0..${nSteps}`, step);
+    if (!(Number.isInteger(path) && path >= 0 && path < from.nPaths))
+      fail('E_BAD_PATH_INDEX', 'start.path', `must be a path index 0..${from.nPaths - 1}`, path);
+    if (from.times.length !== times.length || from.times.some((t, k) => t !== times[k]))
+      fail(
+        'E_START_GRID',
+        'start.from.times',
+        'must be the grid of this prepared variant',
+        from.times.length,
+        'continue a batch simulated by the same prepared variant',
+      );
+    const missing = [
+      ...eqs.filter((s) => !from.equity[s.e.name]).map((s) => `equity.${s.e.name}`),
+      ...eqs
+        .filter((s) => s.e.dynamics.kind === 'heston' && !from.variance[s.e.name])
+        .map((s) => `variance.${s.e.name}`),
+      ...fxStates.filter((f) => !from.fx[f.x.name]).map((f) => `fx.${f.x.name}`),
+      ...[...rateStates.keys()].filter((c) => !from.shortRate[c]).map((c) => `shortRate.${c}`),
+    ];
+    if (missing.length > 0)
+      fail(
+        'E_START_STATE',
+        'start.from',
+        'must hold every state of this variant',
+        missing,
+        'continue a batch simulated by the same prepared variant',
+      );
+    return step;
+  };
+
+  const simulate = (normals: Float64Array, n: number, start?: SimulationStart): PathBatch => {
     if (!Number.isInteger(n) || n <= 0) fail('E_BAD_PATHS', 'nPaths', 'must be a whole number > 0', n);
-    const expected = nSteps * width * n;
+    const k0 = start ? checkStart(start) : 0;
+    const expected = (nSteps - k0) * width * n;
     if (normals.length < expected)
       throw new EngineError('E_INTERNAL', `normals block too short: ${normals.length} < ${expected}`);
     const size = (nSteps + 1) * n;
@@ -399,12 +439,43 @@ export function prepareVariant(
     });
     const cumR = new Float64Array(n);
     discount.fill(1, 0, n);
+    if (start) {
+      // History: grid points 0 … k0 of the continued path, copied bit for bit.
+      const { from, path } = start;
+      const P = from.nPaths;
+      const copy = (src: Float64Array, dst: Float64Array): void => {
+        for (let k = 0; k <= k0; k++) dst.fill(src[k * P + path]!, k * n, (k + 1) * n);
+      };
+      for (const name of Object.keys(equity)) copy(from.equity[name]!, equity[name]!);
+      for (const name of Object.keys(variance)) copy(from.variance[name]!, variance[name]!);
+      for (const name of Object.keys(fxOut)) copy(from.fx[name]!, fxOut[name]!);
+      for (const ccy of Object.keys(shortRate)) copy(from.shortRate[ccy]!, shortRate[ccy]!);
+      copy(from.discount, discount);
+      // Running state at t_{k0}, recovered from the stored outputs. Exact where the state is stored as it runs
+      // (Heston-QE level and variance, local-vol level); elsewhere the recovery can differ from the running value
+      // in the last bits: ln S = log(S) for Black–Scholes, Heston-Euler and local vol (S was stored as exp(ln S)),
+      // ln X = log(X), x = r − φ(t_{k0}) for Hull–White (r was stored as x + φ), ∫r = −log(1/B) for the numeraire.
+      // One recovery is coarser: full-truncation Euler keeps a running variance that may be negative while it stores
+      // max(V, 0), so a continued path restarts from the stored, floored variance (it differs from the running one
+      // only where that was below zero).
+      const o = k0 * P + path;
+      for (const [ccy, rs] of rateStates)
+        if (rs.hw) xNow.get(ccy)!.fill(from.shortRate[ccy]![o]! - rs.phi[k0]!);
+      eqs.forEach((s, i) => {
+        const level = from.equity[s.e.name]![o]!;
+        lnS[i]!.fill(log(level));
+        vNow[i]?.fill(from.variance[s.e.name]![o]!);
+        spotNow[i]?.fill(level);
+      });
+      fxStates.forEach((f, i) => lnX[i]!.fill(log(from.fx[f.x.name]![o]!)));
+      cumR.fill(-log(from.discount[o]!));
+    }
 
-    for (let k = 0; k < nSteps; k++) {
+    for (let k = k0; k < nSteps; k++) {
       const t0 = times[k]!;
       const h = times[k + 1]! - t0;
       const sqh = Math.sqrt(h);
-      const base = k * width * n;
+      const base = (k - k0) * width * n;
       const o0 = k * n;
       const o1 = (k + 1) * n;
       // 1. Correlated unit normals of the active drivers: W_i = Σ_{j≤i} L_ij Z_j.

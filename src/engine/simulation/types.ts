@@ -102,6 +102,19 @@ export interface PathBatch {
   bond(ccy: string, k: number, T: number, out: Float64Array): void;
 }
 
+/**
+ * Where a batch starts when it continues one path of another batch (nested simulation, e.g. the inner paths of a
+ * dual bound): the new paths copy grid points 0 … `step` of path `path` of `from` and branch after it.
+ */
+export interface SimulationStart {
+  /** Batch simulated by the same prepared variant on the same grid. */
+  from: PathBatch;
+  /** Index of the continued path in `from`. */
+  path: number;
+  /** Grid index of the branching time (0 … number of steps). */
+  step: number;
+}
+
 /** Maps a batch of paths to present values (domestic, discounted to 0), one per path. */
 export type PathEvaluator = (batch: PathBatch) => Float64Array;
 
