@@ -23,12 +23,26 @@ import { applyExercisePolicy } from './pricingPass.ts';
 import type { ExerciseSource } from './source.ts';
 import type { ExercisePolicy, ExerciseSample } from './types.ts';
 
+/**
+ * More inner paths where the policy is close to indifferent: at (outer path p, date j) with
+ * |exercise value − fitted continuation value| ≤ `width` × the date's regression rms residual (both in time-t_j
+ * money), the inner simulation uses `innerPaths` paths instead of `nInner`.
+ */
+export interface DualRefinement {
+  /** Half-width of the band around the exercise boundary, in regression rms residuals (> 0). */
+  width: number;
+  /** Inner paths inside the band (≥ nInner). */
+  innerPaths: number;
+}
+
 /** Settings of the dual pass. */
 export interface DualSettings {
   /** Outer paths (their own seed stream). */
   nOuter: number;
-  /** Inner paths per outer path and exercise date. */
+  /** Inner paths per outer path and exercise date (outside the band of `nearBoundary`). */
   nInner: number;
+  /** Optional refinement near the exercise boundary; absent = `nInner` everywhere. */
+  nearBoundary?: DualRefinement;
   /** Seed string of the outer paths. */
   outerSeed: string;
   /** Maps (outer path, date) to the seed string of that inner simulation. */
@@ -43,6 +57,9 @@ export interface DualGap {
   nInner: number;
   /** Inner paths simulated in total. */
   innerPaths: number;
+  /** Inner simulations run (outer path × date pairs), and how many of them lay in the band near the boundary. */
+  innerRuns: number;
+  nearRuns: number;
 }
 
 /** Mean deflated value of flows after date j under the policy on inner paths continuing outer path p. */
@@ -52,9 +69,10 @@ function innerContinuation(
   outer: ExerciseSample,
   j: number,
   p: number,
+  nInner: number,
   settings: DualSettings,
 ): number {
-  const inner = source.continueFrom!(outer, j, p, settings.nInner, settings.innerSeed(p, j));
+  const inner = source.continueFrom!(outer, j, p, nInner, settings.innerSeed(p, j));
   const { values } = applyExercisePolicy(policy, inner, j + 1);
   let s = 0;
   for (let i = 0; i < values.length; i++) s += values[i]!;
@@ -78,26 +96,45 @@ export function estimateDualGap(
       'no restart',
       'omit the dual setting for this source',
     );
+  const refine = settings.nearBoundary;
+  if (refine) {
+    if (!(refine.width > 0 && Number.isFinite(refine.width)))
+      fail('E_DUAL_BAND', 'exercise.dual.nearBoundary.width', 'must be a finite number > 0', refine.width);
+    if (!(Number.isInteger(refine.innerPaths) && refine.innerPaths >= settings.nInner))
+      fail(
+        'E_DUAL_BAND',
+        'exercise.dual.nearBoundary.innerPaths',
+        `must be a whole number ≥ the inner paths elsewhere (${settings.nInner})`,
+        refine.innerPaths,
+      );
+  }
   const outer = source.sample(settings.nOuter, settings.outerSeed);
   const { nPaths: P, nDates: n } = outer;
   const sign = policy.holder === 'holder' ? 1 : -1;
-  // Policy decision at every date on every outer path (the stopping rule from j onwards, as if still running).
+  // Policy decision at every date on every outer path (the stopping rule from j onwards, as if still running), and
+  // whether the path lies in the band near the exercise boundary.
   const ex = new Uint8Array(n * P);
+  const near = new Uint8Array(n * P);
   for (let j = 0; j < n; j++) {
     const date = policy.dates[j]!;
     if (date.fit === 'none') continue;
     const exercise = undeflatedExercise(outer, j);
     const cont = continuationValues(policy.basis, date, outer, j, exercise);
-    for (let p = 0; p < P; p++)
+    const band = refine ? (refine.width * date.rmsResidual) / Math.sqrt(settings.nInner) : -1;
+    for (let p = 0; p < P; p++) {
+      if (Math.abs(exercise[p]! - cont[p]!) <= band) near[j * P + p] = 1;
       if (
         isEligible(outer, j, p, policy.holder, policy.inTheMoneyOnly) &&
         decides(policy.holder, exercise[p]!, cont[p]!)
       )
         ex[j * P + p] = 1;
+    }
   }
   let sum = 0;
   let sumSq = 0;
   let innerCalls = 0;
+  let nearCalls = 0;
+  let innerTotal = 0;
   for (let p = 0; p < P; p++) {
     let cum = 0; // Σ_{i<j, exercise at i} (E_i − Q_i), signed
     let best = -Infinity;
@@ -109,8 +146,13 @@ export function estimateDualGap(
       // policy continues and L_i = C_i exactly). A dead deal (knocked out) has nothing left to continue or exercise.
       if (outer.alive && outer.alive[k] === 0) continue;
       if (policy.holder === 'holder' && policy.inTheMoneyOnly && !(outer.exerciseValue[k]! > 0)) continue;
+      // Inner sample size: fixed by the outer path's state at t_j (the fitted policy and the exercise value) before
+      // any inner path is drawn, so Q_j stays a conditionally unbiased estimate given the outer path up to t_j.
+      const nInner = refine && near[k] === 1 ? refine.innerPaths : settings.nInner;
       innerCalls++;
-      const q = sign * innerContinuation(source, policy, outer, j, p, settings);
+      if (refine && near[k] === 1) nearCalls++;
+      innerTotal += nInner;
+      const q = sign * innerContinuation(source, policy, outer, j, p, nInner, settings);
       const e = sign * outer.exerciseValue[k]!;
       const exercises = ex[k] === 1;
       const d = (exercises ? 0 : e - q) - cum;
@@ -129,6 +171,8 @@ export function estimateDualGap(
     gapSe: Math.sqrt(variance / P),
     nOuter: P,
     nInner: settings.nInner,
-    innerPaths: innerCalls * settings.nInner,
+    innerPaths: innerTotal,
+    innerRuns: innerCalls,
+    nearRuns: nearCalls,
   };
 }

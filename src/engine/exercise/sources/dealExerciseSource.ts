@@ -7,11 +7,17 @@
  * `seed + ':' + driverName`, as its batchNormals), so two variants sharing the driver layout see the same random
  * numbers for the same seed: the exercise passes keep the pairing of common random numbers.
  *
- * Nested paths for the dual bound: the inner paths of outer path p at exercise date j replay p's normals on every
- * step up to t_j and draw fresh ones afterwards, so they coincide with p up to t_j (bit for bit, the generator being
- * a deterministic function of its normals) and branch from its state there. The deal is then evaluated on the
- * whole inner paths, which rebuilds every path-dependent quantity (running averages, state variables, knock-outs)
- * from the shared history; only the exercise dates after t_j and the flows after t_j are used.
+ * Nested paths for the dual bound (`innerStart`):
+ * - 'branch' (default): the inner paths of outer path p at exercise date j copy p's history up to t_j from the
+ *   outer batch (bit for bit) and the generator simulates only the steps after t_j, from p's state there; fresh
+ *   normals are drawn for those steps alone. Cost per (p, j): n_inner × (steps after t_j) generator steps.
+ * - 'replay': the inner paths replay p's normals on every step up to t_j and draw fresh ones afterwards, so they
+ *   re-simulate p's history n_inner times (the same history, the generator being a deterministic function of its
+ *   normals). Kept as the reference the branching start is tested against.
+ * Either way the deal is evaluated on the whole inner paths, which rebuilds every path-dependent quantity (running
+ * averages, state variables, knock-outs) from the shared history; only the exercise dates and flows after t_j are
+ * used. The two starts differ only in the last bits of the state recovered at t_j (see the generator's start
+ * option) and in which fresh normals the inner paths draw, so they estimate the same continuation values.
  */
 import { EngineError, fail } from '../../errors.ts';
 import {
@@ -30,7 +36,7 @@ import {
   type PreparedVariant,
 } from '../../simulation/pathGenerator.ts';
 import { makeTimeGrid } from '../../simulation/timeGrid.ts';
-import type { PathBatch, VariantSpec } from '../../simulation/types.ts';
+import type { PathBatch, SimulationStart, VariantSpec } from '../../simulation/types.ts';
 import type { ExerciseSource } from '../source.ts';
 import type { ExerciseHolder, ExerciseRight, ExerciseSample } from '../types.ts';
 import { exp } from '../../math/detMath.ts';
@@ -47,6 +53,8 @@ export interface DealExerciseSourceSpec {
   prepare?: PrepareOptions;
   /** Antithetic pairs among the fresh normals of the inner paths of the dual bound (default true). */
   innerAntithetic?: boolean;
+  /** How inner paths of the dual bound start (default 'branch'; see the module note). */
+  innerStart?: 'branch' | 'replay';
 }
 
 /** Times (merged over rights, years) and holder of the deal's exercise rights; all must be held by one party. */
@@ -162,24 +170,30 @@ export function dealExerciseSource(spec: DealExerciseSourceSpec): ExerciseSource
   const funding = compiled.fundingSpread ?? 0;
   // Feature names from a probe evaluation on one path: they depend on the deal and the variant only.
   let stateNames: string[] | undefined;
-  const normalsFor = (seed: string, nPaths: number, antithetic = false): Float64Array => {
+  /** Normals of steps `fromStep` … nSteps−1 (block layout of the generator's start option). */
+  const normalsFor = (seed: string, nPaths: number, antithetic = false, fromStep = 0): Float64Array => {
     const w = layout.width;
-    const out = new Float64Array(normalsBlockSize(grid, layout, nPaths));
+    const out = new Float64Array(normalsBlockSize(grid, layout, nPaths, fromStep));
     layout.names.forEach((name, d) => {
       const src = makeNormalSource(makeUniformStream(`${seed}:${name}`), { antithetic });
       const s0 = layout.slot[d]!;
       const width = driverWidth(name);
-      for (let k = 0; k < nSteps; k++)
-        for (let s = s0; s < s0 + width; s++) src.fill(out, (k * w + s) * nPaths, nPaths);
+      for (let k = fromStep; k < nSteps; k++)
+        for (let s = s0; s < s0 + width; s++) src.fill(out, ((k - fromStep) * w + s) * nPaths, nPaths);
     });
     return out;
   };
+  const branch = spec.innerStart !== 'replay';
 
   const toSample = (det: DetailedEvaluation, batch: PathBatch, from: number): ExerciseSample =>
     dealExerciseSample(det, batch, { times, holder, stateNames: stateNames!, fundingSpread: funding }, from);
 
-  function evaluate(normals: Float64Array, nPaths: number): { det: DetailedEvaluation; batch: PathBatch } {
-    const batch = prepared.simulate(normals, nPaths);
+  function evaluate(
+    normals: Float64Array,
+    nPaths: number,
+    start?: SimulationStart,
+  ): { det: DetailedEvaluation; batch: PathBatch } {
+    const batch = prepared.simulate(normals, nPaths, start);
     const det = evaluateDetailed(compiled, batch, spec.evaluator ?? {});
     if (!stateNames) {
       const first = det.exercise[0];
@@ -196,6 +210,8 @@ export function dealExerciseSource(spec: DealExerciseSourceSpec): ExerciseSource
     stateNames: stateNames!,
     inTheMoneyOnly: holder === 'holder',
   };
+  // What continueFrom needs of an outer sample: its paths (branch) or its normals (replay).
+  const outerBatches = new WeakMap<ExerciseSample, PathBatch>();
   const outerNormals = new WeakMap<ExerciseSample, Float64Array>();
 
   return {
@@ -206,17 +222,27 @@ export function dealExerciseSource(spec: DealExerciseSourceSpec): ExerciseSource
       const normals = normalsFor(seed, nPaths);
       const { det, batch } = evaluate(normals, nPaths);
       const s = toSample(det, batch, 0);
-      outerNormals.set(s, normals);
+      if (branch) outerBatches.set(s, batch);
+      else outerNormals.set(s, normals);
       return s;
     },
     continueFrom(outer, j, p, nInner, seed) {
+      const antithetic = spec.innerAntithetic !== false;
+      const kj = steps[j]!;
+      if (branch) {
+        const from = outerBatches.get(outer);
+        if (!from)
+          throw new EngineError('E_INTERNAL', 'inner paths need an outer sample drawn by this source');
+        const normals = normalsFor(seed, nInner, antithetic, kj);
+        const { det, batch } = evaluate(normals, nInner, { from, path: p, step: kj });
+        return toSample(det, batch, j + 1);
+      }
       const on = outerNormals.get(outer);
       if (!on) throw new EngineError('E_INTERNAL', 'inner paths need an outer sample drawn by this source');
       const P = outer.nPaths;
       const w = layout.width;
-      const normals = normalsFor(seed, nInner, spec.innerAntithetic !== false);
+      const normals = normalsFor(seed, nInner, antithetic);
       // Replay the outer path's normals on the steps up to t_j.
-      const kj = steps[j]!;
       for (let k = 0; k < kj; k++)
         for (let s = 0; s < w; s++)
           normals.fill(on[(k * w + s) * P + p]!, (k * w + s) * nInner, (k * w + s + 1) * nInner);
