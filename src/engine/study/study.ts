@@ -1047,7 +1047,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       // Step-halving check of the split on the diagnostic's own grid (same random numbers on both grids):
       // columns [coarse BS, Heston, LV, fine BS, Heston, LV].
       checkAbort();
-      progress(0.745, 'local vol', 'step-halving check of the split');
+      progress(0.745, 'local-vol step check', 'the split on its grid and on the halved grid');
       const lvSh = await runStepHalving({
         variants: lvVariants,
         deal: compiled,
@@ -1079,6 +1079,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         flagAbove,
         flagged: [...flagged],
       };
+      progress(0.748, 'local vol', 'vanilla reprice');
       for (const k of flagged)
         warnings.push(
           `Local-vol diagnostic: the ${k} part changes by ${lvChange[k].value.toPrecision(4)} ± ${lvChange[k].se.toPrecision(3)} when the log-Euler step of ${fmtStep(grid.maxStep)} is halved (beyond 2 SE and a quarter of τ); read the split with care or use a finer grid.`,
@@ -1162,18 +1163,30 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
       const at = (mk: number) => sweepMasks.indexOf(mk);
       const sweepPoint = async (sw: Sweep, rho: number): Promise<SweepPoint | null> => {
         const [a, b] = sw.pair.split('|') as [string, string];
-        const l = calibrateLadder({
-          ...ladderReq,
-          ...(sw.scheme ? { scheme: sw.scheme } : {}),
-          correlationOverride: { [`${a}|${b}`]: rho },
-        });
+        const notPsd = () =>
+          warnings.push(
+            `sweep ${sw.pair} = ${rho.toFixed(3)}: the correlation matrix is not positive semi-definite; point skipped`,
+          );
+        let l: CalibratedLadder;
+        try {
+          l = calibrateLadder({
+            ...ladderReq,
+            ...(sw.scheme ? { scheme: sw.scheme } : {}),
+            correlationOverride: { [`${a}|${b}`]: rho },
+          });
+        } catch (e) {
+          // A variant's drivers (fitted spot–variance ρ included) may have no valid matrix at this point.
+          if (e instanceof EngineError && e.code === 'E_NOT_PSD') {
+            notPsd();
+            return null;
+          }
+          throw e;
+        }
         const m = l.variants[full]!.spec.correlation;
         const used = m.names.filter((x) => active.has(x));
         const sub = used.map((x) => used.map((y) => m.matrix[m.names.indexOf(x)]![m.names.indexOf(y)]!));
         if (!isPsd(sub)) {
-          warnings.push(
-            `sweep ${sw.pair} = ${rho.toFixed(3)}: the correlation matrix is not positive semi-definite; point skipped`,
-          );
+          notPsd();
           return null;
         }
         const spec: RunSpec = {

@@ -58,6 +58,7 @@ describe('local-vol split: step-halving check', () => {
   it('flags exactly the parts whose change exceeds both 2 SE and a quarter of τ, with a warning each', async () => {
     // A threshold of 1 currency unit makes a quarter of τ far below any change, so the flag reduces to "beyond 2 SE";
     // the default threshold (10 bp of notional) makes a quarter of τ the binding size.
+    const seen = new Set<boolean>();
     for (const threshold of [{ kind: 'amount' as const, value: 1 }, base.threshold]) {
       const s = await run(market(), { localVol: true, threshold });
       const sh = s.results.localVol!.stepHalving!;
@@ -65,12 +66,15 @@ describe('local-vol split: step-halving check', () => {
       for (const k of ['smile', 'dynamics'] as const) {
         const c = sh[k];
         const beyond = Math.abs(c.value) > 2 * c.se && Math.abs(c.value) > s.results.tau / 4;
+        seen.add(beyond);
         expect(sh.flagged.includes(k), `${k}: ${c.value} ± ${c.se}, τ/4 = ${s.results.tau / 4}`).toBe(beyond);
         expect(s.warnings.some((w) => w.startsWith(`Local-vol diagnostic: the ${k} part changes`))).toBe(
           beyond,
         );
       }
     }
+    // Both outcomes occur on these seeded runs, so the rule is exercised both ways.
+    expect([...seen].sort()).toEqual([false, true]);
   }, 30_000);
 });
 
@@ -106,6 +110,19 @@ describe('variance–rate correlation sweeps', () => {
     expect(se.scheme).toBeUndefined();
     expect(se.basePoint).toBeUndefined();
     expect(se.points).toEqual(sw.points);
+  }, 30_000);
+  it('a point at which the drivers have no valid correlation matrix is skipped with a warning, never repaired', async () => {
+    // With the fitted spot–variance ρ of ALDR far from 0 and ρ(ALDR, DOM rate) ≠ 0, ρ(v,r) = ±0.95 leaves the
+    // 3×3 block [eq, var, rate] with a negative determinant (a correlation matrix must be positive semi-definite).
+    const m = market();
+    m.correlationRanges = { 'var:ALDR|rate:DOM': [-0.95, 0.95] };
+    const s = await run(m, settings);
+    const sw = s.results.sweeps.find((x) => x.pair === 'var:ALDR|rate:DOM')!;
+    expect(sw.points.map((p) => p.rho)).toEqual([0]);
+    expect(
+      s.warnings.filter((w) => /^sweep var:ALDR\|rate:DOM = (-0\.950|0\.950): .*point skipped$/.test(w)),
+    ).toHaveLength(2);
+    expect(sw.basePoint).toEqual(sw.points[0]);
   }, 30_000);
 });
 
