@@ -77,7 +77,7 @@ export function App(props: { engine: EngineClient }) {
 
   const notify = useCallback((tone: Notice['tone'], text: string) => {
     const id = ++noticeId.current;
-    setNotices((n) => [...n.slice(-3), { id, tone, text }]);
+    setNotices((n) => [...n.slice(-1), { id, tone, text }]);
     setTimeout(() => setNotices((n) => n.filter((x) => x.id !== id)), tone === 'error' ? 12_000 : 3_000);
   }, []);
 

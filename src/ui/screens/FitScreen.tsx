@@ -3,6 +3,7 @@
  * the parameters, the residuals (and their Monte Carlo reprice on the study's own paths), and how stable
  * the parameters are across the snapshot dates.
  */
+import { factorShortName } from '../components/factorNames.ts';
 import { useEffect, useState } from 'react';
 import type { StabilityReport } from '../../engine/calibration/calibrationStability.ts';
 import type { LadderVariant, SavedStudy } from '../../engine/study/types.ts';
@@ -13,23 +14,39 @@ import { SmileChart, type SmileCurve } from '../components/SmileChart.tsx';
 import { groupFit, rmseOf, type FitLine, type GroupedFit } from './fitGroups.ts';
 import { num, pct, secs } from '../components/format.ts';
 
+/** Heston parameters with their meaning and unit (Heston 1993, Rev. Financ. Stud. 6(2), eq. 1 notation). */
+const HESTON_PARAM = {
+  v0: 'v₀ variance today',
+  kappa: 'κ mean reversion (per year)',
+  theta: 'θ long-run variance',
+  sigma: 'σ vol of variance',
+  rho: 'ρ spot–variance correlation',
+} as const;
+
 function paramsOf(v: LadderVariant): { name: string; value: number }[] {
   const out: { name: string; value: number }[] = [];
   for (const e of v.spec.equities) {
     const d = e.dynamics;
     if (d.kind === 'heston')
       for (const k of ['v0', 'kappa', 'theta', 'sigma', 'rho'] as const)
-        out.push({ name: `${e.name} ${k}`, value: d[k] });
+        out.push({ name: `${e.name} ${HESTON_PARAM[k]}`, value: d[k] });
     else if (d.kind === 'bs')
       d.vols.forEach((s, i) => out.push({ name: `${e.name} σ to ${num(d.volTimes[i], 3)}y`, value: s }));
-    else out.push({ name: `${e.name} local vol grid`, value: d.values.length * (d.values[0]?.length ?? 0) });
+    else
+      out.push({
+        name: `${e.name} local vol grid (points)`,
+        value: d.values.length * (d.values[0]?.length ?? 0),
+      });
   }
   for (const [ccy, r] of Object.entries(v.spec.rates))
     if (r.hw) {
-      out.push({ name: `${ccy} mean reversion a`, value: r.hw.a });
+      out.push({ name: `${ccy} mean reversion a (per year)`, value: r.hw.a });
       const s = r.hw.sigma;
-      if (Array.isArray(s)) s.forEach((x, i) => out.push({ name: `${ccy} σ piece ${i + 1}`, value: x }));
-      else out.push({ name: `${ccy} σ`, value: s });
+      if (Array.isArray(s))
+        s.forEach((x, i) =>
+          out.push({ name: `${ccy} short-rate vol σ, piece ${i + 1} (absolute)`, value: x }),
+        );
+      else out.push({ name: `${ccy} short-rate vol σ (absolute)`, value: s });
     }
   return out;
 }
@@ -492,7 +509,7 @@ function Stability(props: { s: SavedStudy }) {
             <tbody>
               {factors.map((f) => (
                 <tr key={f}>
-                  <td>{f}</td>
+                  <td>{factorShortName(f)}</td>
                   {st.map((d) => (
                     <td key={d.date}>
                       {d.verdicts[f] ? (VERDICT_WORD[d.verdicts[f]!] ?? d.verdicts[f]) : 'not run'}

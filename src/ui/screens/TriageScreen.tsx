@@ -3,6 +3,7 @@
  * the threshold, attribution, hedge ratios, correlation sweeps, convergence over the looks, and the costs.
  * The run settings sit in the side panel; a run shows progress and can be cancelled.
  */
+import { pairName } from '../components/factorNames.ts';
 import { memo } from 'react';
 import type { FactorId } from '../../engine/study/rules.ts';
 import { FACTOR_LABELS } from '../../engine/study/rules.ts';
@@ -616,7 +617,7 @@ const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stal
             {r.sweeps.map((sw) => (
               <div key={sw.pair}>
                 <LineChart
-                  title={`${sw.pair}: price over [${num(sw.range[0], 2)}, ${num(sw.range[1], 2)}]`}
+                  title={`${pairName(sw.pair)} correlation: price over [${num(sw.range[0], 2)}, ${num(sw.range[1], 2)}]`}
                   xLabel="correlation"
                   yLabel={`price (${ccy})`}
                   series={[
