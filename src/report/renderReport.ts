@@ -533,7 +533,7 @@ ${table(
     const plots = s.results.sweeps
       .map((sw) =>
         lineChart({
-          title: `${sw.pair}${sw.scheme === 'euler' ? ' (Euler, ρ(v,r) ≠ 0 needs it)' : ''}: richest variant's price across the plausible range [${sw.range[0]}, ${sw.range[1]}] (market value ${fmt(sw.base, 3)}${sw.basePoint ? `, Euler price there ${fmt(sw.basePoint.price.value)}` : ''}); band ${fmt(sw.band)} ${ccy}`,
+          title: `${sw.pair}${sw.scheme === 'euler' ? ` (${sw.schemeNote ?? 'Euler'})` : ''}: richest variant's price across the plausible range [${sw.range[0]}, ${sw.range[1]}] (market value ${fmt(sw.base, 3)}${sw.basePoint ? `, Euler price there ${fmt(sw.basePoint.price.value)}` : ''}); band ${fmt(sw.band)} ${ccy}`,
           xLabel: 'correlation',
           yLabel: `price (${ccy})`,
           series: [
@@ -565,7 +565,7 @@ ${table(
         s.results.sweeps.map((sw) => [
           esc(sw.pair),
           sw.scheme === 'euler'
-            ? 'Euler, ρ(v,r) ≠ 0 needs it'
+            ? esc(sw.schemeNote ?? 'Euler')
             : esc(s.input.settings.scheme === 'euler' ? 'Euler' : 'QE'),
           `${fmt(sw.range[0], 3)} … ${fmt(sw.range[1], 3)}`,
           sw.basePoint

@@ -48,6 +48,7 @@ function withDiagnostics(): SavedStudy {
       range: [-0.3, 0.3],
       base: 0,
       scheme: 'euler',
+      schemeNote: 'Euler, ρ(v,r) ≠ 0 needs it',
       basePoint: pt(0, 10.4),
       points: [pt(-0.3, 10.3), pt(0, 10.4), pt(0.3, 10.5)],
       band: 0.2,

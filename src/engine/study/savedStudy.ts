@@ -239,6 +239,7 @@ const studySchema = z.object({
         z.looseObject({
           pair: z.string(),
           scheme: z.enum(['qe', 'euler']).optional(),
+          schemeNote: z.string().optional(),
           basePoint: z.looseObject({ rho: num, price: valueSe }).optional(),
         }),
       )

@@ -76,6 +76,9 @@ import {
   type VariantRepricing,
 } from './types.ts';
 
+/** Label of a variance–rate sweep run under Euler by a QE study (saved with the sweep, shown by the report). */
+export const EULER_SWEEP_NOTE = 'Euler, ρ(v,r) ≠ 0 needs it';
+
 /** Version written into study files. */
 export const TOOL_VERSION = '0.1.0';
 
@@ -1151,7 +1154,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
           pair,
           range,
           base,
-          ...(needsEuler(pair) ? { scheme: 'euler' as const } : {}),
+          ...(needsEuler(pair) ? { scheme: 'euler' as const, schemeNote: EULER_SWEEP_NOTE } : {}),
           points: [],
           band: 0,
           materialSomewhere: [],

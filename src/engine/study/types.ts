@@ -251,6 +251,8 @@ export interface Sweep {
    * variance–rate correlation, which QE cannot carry (ρ(v,r) ≠ 0 needs Euler). Absent: the study's scheme.
    */
   scheme?: 'qe' | 'euler';
+  /** Label of an Euler sweep of a QE study, for display: "Euler, ρ(v,r) ≠ 0 needs it". */
+  schemeNote?: string;
   /**
    * For an Euler sweep of a QE study: the base point (ρ at its market value) re-run under Euler on the sweep's paths,
    * so the points are compared with a base of the same scheme. Absent otherwise and in older files.

@@ -94,6 +94,7 @@ describe('variance–rate correlation sweeps', () => {
     const sw = qe.results.sweeps.find((x) => x.pair === 'var:ALDR|rate:DOM')!;
     expect(sw, 'the pair is swept, not skipped').toBeDefined();
     expect(sw.scheme).toBe('euler');
+    expect(sw.schemeNote).toBe('Euler, ρ(v,r) ≠ 0 needs it');
     expect(sw.base).toBe(0);
     // The market value 0 is the middle of the 3 points: same ladder request, same scheme, same seed → same paths.
     const mid = sw.points.find((p) => p.rho === 0)!;
