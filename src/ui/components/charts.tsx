@@ -67,6 +67,8 @@ export function LineChart(props: {
   xFormat?: (v: number) => string;
   height?: number;
   logX?: boolean;
+  /** What to say when no series has a point (default: no data to plot for the title). */
+  empty?: string;
 }) {
   const id = useId();
   const W = 560;
@@ -81,7 +83,8 @@ export function LineChart(props: {
   const yf = props.yFormat ?? stepFormat(niceTicks(y0, y1));
   const xTicks = props.logX ? niceTicks(Math.exp(x0), Math.exp(x1)).filter((v) => v > 0) : niceTicks(x0, x1);
   const xf = props.xFormat ?? stepFormat(xTicks);
-  if (pts.length === 0) return <p className="empty">No data to plot for {props.title.toLowerCase()}.</p>;
+  if (pts.length === 0)
+    return <p className="empty">{props.empty ?? `No data to plot for “${props.title}”.`}</p>;
   return (
     <figure className="chart">
       <svg viewBox={`0 0 ${W} ${H}`} role="img" aria-labelledby={id}>
@@ -197,7 +200,14 @@ export interface IntervalRow {
 }
 
 /** Horizontal intervals around values, with the ±τ materiality band shaded. */
-export function IntervalChart(props: { title: string; rows: IntervalRow[]; tau?: number; unit: string }) {
+export function IntervalChart(props: {
+  title: string;
+  rows: IntervalRow[];
+  tau?: number;
+  unit: string;
+  /** What to say when there are no rows (default: nothing to show for the title). */
+  empty?: string;
+}) {
   const id = useId();
   const W = 560;
   const rowH = 30;
@@ -208,7 +218,7 @@ export function IntervalChart(props: { title: string; rows: IntervalRow[]; tau?:
     Math.max(tau * 1.3, ...props.rows.map((r) => Math.abs(r.value) + r.half + (r.budget ?? 0))) || 1;
   const sx = (v: number): number => m.l + ((v + span) / (2 * span)) * (W - m.l - m.r);
   if (props.rows.length === 0)
-    return <p className="empty">Nothing to show for {props.title.toLowerCase()}.</p>;
+    return <p className="empty">{props.empty ?? `Nothing to show for “${props.title}”.`}</p>;
   return (
     <figure className="chart">
       <svg viewBox={`0 0 ${W} ${H}`} role="img" aria-labelledby={id}>

@@ -470,6 +470,7 @@ const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stal
         <h2>Price impact of each factor</h2>
         <IntervalChart
           title="Δ = richest variant − richest without the factor"
+          empty="No factor was simulated: the rules decided each one (see the cards above), so there is no price impact to plot."
           unit={ccy}
           tau={tau}
           rows={s.verdicts
@@ -658,6 +659,7 @@ const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stal
           <h2>Convergence over the looks</h2>
           <LineChart
             title="Δ per factor against paths"
+            empty="No factor was simulated, so there is nothing to follow over the looks."
             xLabel="paths (log scale)"
             yLabel={`Δ (${ccy})`}
             logX
