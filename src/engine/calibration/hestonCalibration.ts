@@ -15,10 +15,10 @@ import {
   type PreparedCosSlice,
 } from './cosPricer.ts';
 import { h1hwCumulants, h1hwLogChfGrid, sqrtVarianceTable, type H1HwRates } from './h1hwCharFn.ts';
-import { hestonExponentGrid } from '../models/hestonCharFn.ts';
+import { hestonExponentGradientGrid, hestonExponentGrid } from '../models/hestonCharFn.ts';
 import { defaultTruncationL, hestonCumulants } from '../models/hestonCos.ts';
-import { blackImpliedVol, blackPrice } from './blackFormulas.ts';
-import { fitLeastSquares, type FitParameter, type FitReport } from './levenbergMarquardt.ts';
+import { blackImpliedVol, blackPrice, blackVega } from './blackFormulas.ts';
+import { fitFromStarts, fitLeastSquares, type FitParameter, type FitReport } from './levenbergMarquardt.ts';
 import { gridArbitrageIssues, gridQuotes, type VolQuote } from './volGrid.ts';
 import { nowMs } from './clock.ts';
 import { log, pow } from '../math/detMath.ts';
@@ -63,6 +63,11 @@ export interface HestonCalibrationInput {
   weights?: number[];
   /** Starting points (default: four spread over the plausible region, the first from the ATM term structure). */
   starts?: HestonParams[];
+  /**
+   * `good-fit-stops` (default): the starts run in order and the rest are skipped once one converges with an RMSE of
+   * at most a tenth of the tolerance ({@link fitFromStarts}); `all`: every start runs.
+   */
+  startRule?: 'good-fit-stops' | 'all';
   /** Parameters held fixed at the given values. */
   fixed?: Partial<HestonParams>;
   /** Under Hull–White rates: the H1-HW characteristic function is used. */
@@ -124,6 +129,11 @@ export interface HestonCalibration {
   feller: { ratio: number; satisfied: boolean };
   /** Every start's result (best first). */
   starts: { start: HestonParams; params: HestonParams; rmse: number; converged: boolean }[];
+  /**
+   * Starts not run, and why: the rule of {@link HestonCalibrationInput.startRule} in words. When some were skipped,
+   * `spread` covers only the starts that ran.
+   */
+  skippedStarts: { starts: HestonParams[]; rule: string };
   /** Min and max of each parameter over the converged starts whose RMSE is within 2× the best. */
   spread: Record<string, { min: number; max: number }>;
   /** Whether the fit converged and met the tolerance. */
@@ -219,6 +229,31 @@ function pricesOn(p: HestonParams, quotes: VolQuote[], list: SliceOfQuotes[], ra
     });
   }
   return out;
+}
+
+/** Model prices of the quotes with ∂price/∂(v0, κ, θ, σ, ρ) per quote, on the given prepared slices (Heston only). */
+function pricesAndGradientOn(
+  p: HestonParams,
+  quotes: VolQuote[],
+  list: SliceOfQuotes[],
+): { prices: number[]; gradient: number[][] } {
+  const prices = new Array<number>(quotes.length).fill(NaN);
+  const gradient = new Array<number[]>(quotes.length);
+  for (const s of list) {
+    const T = s.expiry;
+    // Analytic ∂ln φ/∂p of the models layer (forward-mode chain rule through the little-trap form).
+    const res = s.slice.callPricesWithGradientOnGrid(
+      (u, re, im, gRe, gIm) => hestonExponentGradientGrid(p, T, u, re, im, gRe, gIm),
+      HESTON_NAMES.length,
+    );
+    s.idx.forEach((i, k) => {
+      const q = quotes[i]!;
+      // Put = call − df(F − K): the parity term does not depend on the parameters.
+      prices[i] = q.isCall ? res.prices[k]! : res.prices[k]! - q.df * (q.forward - q.strike);
+      gradient[i] = res.gradient[k]!;
+    });
+  }
+  return { prices, gradient };
 }
 
 /** The check of a fit's pricer: prices on the model's own ranges, and those ranges with the terms they needed. */
@@ -361,8 +396,7 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
   const scale = quotes.map(vegaFloor);
   const targetVol = quotes.map((q, i) => q.vol + (shift ? shift[i]! : 0));
   const fastSlices = preparedSlices(quotes, input.terms ?? 192);
-  const residualsOn = (list: SliceOfQuotes[]) => (p: Readonly<Record<string, number>>) => {
-    const m = pricesOn(p as unknown as HestonParams, quotes, list, input.rates);
+  const residualsFromPrices = (m: number[]) => {
     if (input.residuals === 'implied-vol')
       return m.map((x, i) => {
         const q = quotes[i]!;
@@ -371,6 +405,46 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
         return Number.isFinite(iv) ? iv - targetVol[i]! : (x - target[i]!) / scale[i]!;
       });
     return m.map((x, i) => (x - target[i]!) / scale[i]!);
+  };
+  const freeNames = HESTON_NAMES.filter((n) => fixed[n] === undefined);
+  const freeIdx = freeNames.map((n) => HESTON_NAMES.indexOf(n));
+  /**
+   * Residuals, and for plain Heston their analytic Jacobian: ∂r_i/∂p = (∂price_i/∂p)/vega_i (vega of the market
+   * quote for `vega-price`, of the model's implied vol for `implied-vol`, by the implicit function theorem), from the
+   * analytic gradient of the characteristic function on the same COS slices. The last Jacobian is kept (the report's
+   * standard errors ask for it again at the solution). The optimiser updates it by Broyden steps between full ones.
+   * Under rates (H1-HW) the optimiser differences the residuals instead.
+   */
+  const problemOn = (list: SliceOfQuotes[]) => {
+    if (input.rates)
+      return {
+        residuals: (p: Readonly<Record<string, number>>) =>
+          residualsFromPrices(pricesOn(p as unknown as HestonParams, quotes, list, input.rates)),
+      };
+    let lastKey: number[] = [];
+    let last: number[][] | undefined;
+    const jacobian = (p: Readonly<Record<string, number>>) => {
+      const key = HESTON_NAMES.map((n) => p[n]!);
+      if (last && key.every((x, i) => x === lastKey[i])) return last;
+      const { prices, gradient } = pricesAndGradientOn(p as unknown as HestonParams, quotes, list);
+      const J = prices.map((x, i) => {
+        const q = quotes[i]!;
+        let v = scale[i]!;
+        if (input.residuals === 'implied-vol') {
+          const iv = blackImpliedVol({ ...q, price: x });
+          if (Number.isFinite(iv)) v = Math.max(blackVega({ ...q, vol: iv }), 1e-300);
+        }
+        return freeIdx.map((k) => gradient[i]![k]! / v);
+      });
+      lastKey = key;
+      last = J;
+      return J;
+    };
+    return {
+      residuals: (p: Readonly<Record<string, number>>) =>
+        residualsFromPrices(pricesOn(p as unknown as HestonParams, quotes, list)),
+      jacobian,
+    };
   };
   const starts = input.starts ?? defaultHestonStarts(quotes);
   const runFit = (s: HestonParams, list: SliceOfQuotes[]): FitReport => {
@@ -384,7 +458,7 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
     return fitLeastSquares(
       {
         parameters: params,
-        residuals: residualsOn(list),
+        ...problemOn(list),
         weights: input.weights,
         constraints: [
           {
@@ -394,10 +468,18 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
           },
         ],
       },
-      { maxEvaluations: input.maxEvaluations ?? 300, costTol: 1e-10 },
+      {
+        maxEvaluations: input.maxEvaluations ?? 300,
+        costTol: 1e-10,
+        jacobianUpdate: input.rates ? 'full' : 'broyden',
+      },
     );
   };
-  const runs = starts.map((s) => ({ start: s, fit: runFit(s, fastSlices) }));
+  const tol = input.toleranceVolPoints ?? 0.5;
+  const stopRule = input.startRule ?? 'good-fit-stops';
+  // RMSE of the raw residuals is in vol (decimals): a tenth of the tolerance in vol points is tol/1000.
+  const multi = fitFromStarts(starts, (s) => runFit(s, fastSlices), stopRule === 'all' ? 0 : tol / 1000);
+  const runs = multi.runs;
   runs.sort((a, b) => cost(a.fit) - cost(b.fit));
   const best = runs[0]!;
   let bestFit = best.fit;
@@ -447,7 +529,6 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
   );
   const rmseVolPoints = Math.sqrt(volErr.reduce((s, x) => s + x * x, 0) / volErr.length);
   const maxAbsVolPoints = Math.max(...volErr.map(Math.abs));
-  const tol = input.toleranceVolPoints ?? 0.5;
   const good = runs.filter((r) => r.fit.converged && cost(r.fit) <= 4 * cost(best.fit) + 1e-14);
   const spread: Record<string, { min: number; max: number }> = {};
   for (const n of HESTON_NAMES) {
@@ -493,6 +574,13 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
       converged: r.fit.converged,
     })),
     spread,
+    skippedStarts: {
+      starts: multi.skipped,
+      rule:
+        stopRule === 'all'
+          ? 'every start runs'
+          : `starts after the first converged fit with RMSE ≤ ${(tol / 10).toPrecision(3)} vol points (a tenth of the tolerance) are skipped: another start could not change acceptance; the parameter spread then covers only the starts run`,
+    },
     ok: bestFit.converged && rmseVolPoints <= tol,
     warnings,
     seconds: (nowMs() - t0) / 1000,

@@ -55,6 +55,14 @@ export interface FitOptions {
   stepTol?: number;
   /** Relative cost improvement below which an accepted step counts as converged (default 1e-12). */
   costTol?: number;
+  /**
+   * `full` (default): a new Jacobian at every accepted point. `broyden`: Broyden's rank-one secant update after every
+   * trial step instead (C.G. Broyden, "A class of methods for solving nonlinear simultaneous equations", Math. Comp.
+   * 19, 1965; in L–M: Madsen, Nielsen & Tingleff 2004, Sec. 3.4, eq. (3.19)), with a full Jacobian again after a
+   * rejected step or a poor gain ratio (ϱ < 0.25), and before any stop is accepted, so the stopping tests and the
+   * reported standard errors always use a full Jacobian. Pays when a Jacobian costs much more than a residual.
+   */
+  jacobianUpdate?: 'full' | 'broyden';
 }
 
 export type StopReason =
@@ -74,6 +82,8 @@ export interface FitReport {
   /** sqrt(mean(r_i²)) of the raw residuals. */
   rmse: number;
   evaluations: number;
+  /** Full Jacobians computed (analytic or by differences) during the iteration. */
+  jacobians: number;
   iterations: number;
   seconds: number;
   stopReason: StopReason;
@@ -189,10 +199,15 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
   let r = weighted(toParams(z));
   let stopReason: StopReason = 'max-evaluations';
   let iterations = 0;
+  let jacobians = 0;
+  const secant = options.jacobianUpdate === 'broyden';
   if (!finite(r)) stopReason = 'non-finite';
   else if (n > 0) {
     let F = cost(r);
     let J = jacobianZ(z, r);
+    jacobians++;
+    let fresh = true;
+    let costRefreshes = 0;
     const normalEq = (Jm: number[][], rv: number[]) => {
       const A = Array.from({ length: n }, () => new Array<number>(n).fill(0));
       const g = new Array<number>(n).fill(0);
@@ -207,6 +222,25 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
       return { A, g };
     };
     let { A, g } = normalEq(J, r);
+    const refresh = () => {
+      J = jacobianZ(z, r);
+      jacobians++;
+      ({ A, g } = normalEq(J, r));
+      fresh = true;
+    };
+    /** Broyden's rank-one update J ← J + (r(z + h) − r(z) − J h) hᵀ/(hᵀh) (MNT 2004 eq. (3.19)). */
+    const broyden = (h: number[], rNew: number[]) => {
+      const hh = h.reduce((acc, x) => acc + x * x, 0);
+      if (!(hh > 0)) return;
+      for (let i = 0; i < rNew.length; i++) {
+        const row = J[i]!;
+        let jh = 0;
+        for (let j = 0; j < n; j++) jh += row[j]! * h[j]!;
+        const c = (rNew[i]! - r[i]! - jh) / hh;
+        for (let j = 0; j < n; j++) row[j] = row[j]! + c * h[j]!;
+      }
+      fresh = false;
+    };
     // Madsen, Nielsen & Tingleff (2004), Algorithm 3.16: μ0 = τ·max A_ii, τ = 1e-3, ν = 2.
     let mu = 1e-3 * Math.max(...A.map((row, i) => row[i]!), 1e-12);
     let nu = 2;
@@ -217,6 +251,10 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
         break;
       }
       if (Math.max(...g.map(Math.abs)) <= eps1) {
+        if (secant && !fresh) {
+          refresh();
+          continue;
+        }
         stopReason = 'gradient';
         break;
       }
@@ -242,6 +280,10 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
       );
       const zNorm = hypotOf(z);
       if (hypotOf(h) <= eps2 * (zNorm + eps2)) {
+        if (secant && !fresh) {
+          refresh();
+          continue;
+        }
         stopReason = 'step';
         break;
       }
@@ -251,6 +293,7 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
       // Gain ratio ϱ = (F(x) − F(x_new)) / (L(0) − L(h)), L(0) − L(h) = ½ hᵀ(μh − g)  (MNT 2004 eq. 3.14).
       const predicted = 0.5 * h.reduce((s, hj, j) => s + hj * (mu * hj - g[j]!), 0);
       const gain = (F - FNew) / predicted;
+      if (secant && Number.isFinite(FNew)) broyden(h, rNew);
       if (gain > 0 && Number.isFinite(FNew)) {
         const improvement = (F - FNew) / Math.max(F, 1e-300);
         z = zNew;
@@ -259,13 +302,22 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
         if (improvement < eps3) smallImprovements++;
         else smallImprovements = 0;
         if (smallImprovements >= 2) {
+          if (secant && !fresh && costRefreshes < 2) {
+            costRefreshes++;
+            smallImprovements = 0;
+            refresh();
+            continue;
+          }
           stopReason = 'cost';
           break;
         }
-        J = jacobianZ(z, r);
-        ({ A, g } = normalEq(J, r));
+        if (!secant || gain < 0.25) refresh();
+        else ({ A, g } = normalEq(J, r));
         mu *= Math.max(1 / 3, 1 - (2 * gain - 1) * (2 * gain - 1) * (2 * gain - 1));
         nu = 2;
+      } else if (secant && !fresh) {
+        // A rejected step from an updated Jacobian: retry from a full one before raising the damping.
+        refresh();
       } else {
         mu *= nu;
         nu *= 2;
@@ -290,21 +342,27 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
     stopReason === 'cost' ||
     stopReason === 'zero-residual';
 
-  // Standard errors and conditioning from a Jacobian in the parameters themselves (one-sided away from bounds).
+  // Standard errors and conditioning from a Jacobian in the parameters themselves: the problem's analytic one when
+  // it has one, else one-sided differences (away from bounds).
   const standardErrors: Record<string, number> = {};
   let conditionNumber = NaN;
   const warnings: FieldIssue[] = [];
   if (n > 0) {
     const Jp = Array.from({ length: m }, () => new Array<number>(n).fill(0));
-    free.forEach((par, j) => {
-      const p0 = params[par.name]!;
-      let h = 1e-6 * Math.max(Math.abs(p0), 1e-3);
-      if (par.upper !== undefined && p0 + h > par.upper) h = -h;
-      const p1 = { ...params, [par.name]: p0 + h };
-      const r1 = problem.residuals(p1);
-      evaluations++;
-      for (let i = 0; i < m; i++) Jp[i]![j] = ((r1[i]! - raw[i]!) * (weights ? weights[i]! : 1)) / h;
-    });
+    const Ja = problem.jacobian ? problem.jacobian(params) : undefined;
+    if (Ja)
+      for (let i = 0; i < m; i++)
+        for (let j = 0; j < n; j++) Jp[i]![j] = Ja[i]![j]! * (weights ? weights[i]! : 1);
+    else
+      free.forEach((par, j) => {
+        const p0 = params[par.name]!;
+        let h = 1e-6 * Math.max(Math.abs(p0), 1e-3);
+        if (par.upper !== undefined && p0 + h > par.upper) h = -h;
+        const p1 = { ...params, [par.name]: p0 + h };
+        const r1 = problem.residuals(p1);
+        evaluations++;
+        for (let i = 0; i < m; i++) Jp[i]![j] = ((r1[i]! - raw[i]!) * (weights ? weights[i]! : 1)) / h;
+      });
     const JtJ = Array.from({ length: n }, (_, a) =>
       Array.from({ length: n }, (_, b) => Jp.reduce((s, row) => s + row[a]! * row[b]!, 0)),
     );
@@ -367,6 +425,7 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
     residuals: raw,
     rmse,
     evaluations,
+    jacobians,
     iterations,
     seconds: (nowMs() - t0) / 1000,
     stopReason,
@@ -374,4 +433,34 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
     constraints,
     warnings,
   };
+}
+
+/** What {@link fitFromStarts} ran: every fit in start order, and the starts it left out. */
+export interface MultiStartFits<S> {
+  runs: { start: S; fit: FitReport }[];
+  /** Starts not run because an earlier one already fitted within `goodRmse`. */
+  skipped: S[];
+}
+
+/**
+ * Multi-start fitting with an early stop: the starts are fitted in order, and the remaining ones are skipped once a
+ * fit has converged with a raw-residual RMSE of at most `goodRmse`. Rule (common practice for multi-start
+ * least squares): another start could lower the RMSE by at most that fit's own RMSE, so with `goodRmse` a tenth of
+ * the acceptance tolerance no further start can change whether the fit is accepted. A start caught in a poorer local
+ * minimum (RMSE above `goodRmse`) never stops the search, so the protection of multiple starts against local minima
+ * is kept; what a skipped start would have added is the spread of parameters across minima of equal fit, which the
+ * caller reports as not measured. `goodRmse` ≤ 0 runs every start.
+ */
+export function fitFromStarts<S>(
+  starts: readonly S[],
+  fit: (start: S) => FitReport,
+  goodRmse: number,
+): MultiStartFits<S> {
+  const runs: { start: S; fit: FitReport }[] = [];
+  for (let i = 0; i < starts.length; i++) {
+    const f = fit(starts[i]!);
+    runs.push({ start: starts[i]!, fit: f });
+    if (goodRmse > 0 && f.converged && f.rmse <= goodRmse) return { runs, skipped: starts.slice(i + 1) };
+  }
+  return { runs, skipped: [] };
 }
