@@ -24,12 +24,22 @@ import type { ExerciseSource } from './source.ts';
 import type { ExercisePolicy, ExerciseSample } from './types.ts';
 
 /**
- * More inner paths where the policy is close to indifferent: at (outer path p, date j) with
- * |exercise value − fitted continuation value| ≤ `width` × the date's regression rms residual (both in time-t_j
- * money), the inner simulation uses `innerPaths` paths instead of `nInner`.
+ * More inner paths where the policy is close to indifferent (where inner-path noise can flip the sign of
+ * exercise − continuation, the terms that feed the upward bias of the nested estimate): at (outer path p, date j)
+ * with |exercise value − fitted continuation value| ≤ `width` × s_j / √nInner, s_j the date's regression rms
+ * residual (both in time-t_j money; s_j / √nInner is the order of the inner estimate's standard error), the inner
+ * simulation uses `innerPaths` paths instead of `nInner`.
+ *
+ * Validity (the bound stays conservative): the sample size at (p, j) is a function of the outer path up to t_j
+ * only (the fitted policy and the outer exercise value), fixed before any inner path is drawn. Given the outer path
+ * the inner estimate Q_j is then still an unbiased mean of independent inner values, which is all the argument of
+ * Andersen & Broadie (2004) for the upward bias of the nested estimator uses; only its variance changes.
+ * Allocating inner paths by the outer state follows the spirit of the boundary-distance grouping of Broadie & Cao
+ * (2008, 'Improved lower and upper bound algorithms for pricing American options by simulation', Quantitative
+ * Finance 8(8), Sec. 4, from memory), which also sorts outer paths by their distance to the fitted boundary.
  */
 export interface DualRefinement {
-  /** Half-width of the band around the exercise boundary, in regression rms residuals (> 0). */
+  /** Half-width of the band around the exercise boundary, in units of s_j / √nInner (> 0). */
   width: number;
   /** Inner paths inside the band (≥ nInner). */
   innerPaths: number;
