@@ -270,7 +270,7 @@ function VariantFit(props: { v: LadderVariant; market: MarketSnapshot | undefine
       <div className="two-even">
         <section className="panel">
           <h2>Parameters</h2>
-          <table className="data">
+          <table className="data params">
             <tbody>
               {params.map((p) => (
                 <tr key={p.name}>

@@ -2,6 +2,7 @@
  * Review: what a model committee does with a saved study — see where it came from, verify that it re-runs
  * bit for bit, compare it with another study, and export the report.
  */
+import { factorShortName } from '../components/factorNames.ts';
 import { useEffect, useState } from 'react';
 import type { StudyDiff, FieldChange } from '../../engine/study/diff.ts';
 import type { SavedStudy } from '../../engine/study/types.ts';
@@ -53,6 +54,11 @@ function lastDigitsOnly(a: unknown, b: unknown): boolean {
   if (typeof a !== 'number' || typeof b !== 'number' || a === b || !Number.isFinite(a) || !Number.isFinite(b))
     return false;
   return Math.abs(a - b) <= 64 * Number.EPSILON * Math.max(Math.abs(a), Math.abs(b));
+}
+
+/** "1 setting", "3 settings". */
+function count(n: number, noun: string): string {
+  return `${n} ${noun}${n === 1 ? '' : 's'}`;
 }
 
 export function ReviewScreen() {
@@ -254,7 +260,7 @@ export function ReviewScreen() {
               data-testid="verify-result"
             >
               <strong>{task.outcome.identical ? 'Reproduced bit for bit.' : 'Not reproduced.'}</strong>{' '}
-              {task.outcome.message}
+              {task.outcome.message.charAt(0).toUpperCase() + task.outcome.message.slice(1)}
               {task.outcome.difference && (
                 <div className="mono">
                   {task.outcome.difference.field}: saved {show(task.outcome.difference.saved)}, re-run{' '}
@@ -327,7 +333,7 @@ export function ReviewScreen() {
             <p className={diff.identical ? 'ok' : ''}>
               {diff.identical
                 ? 'The two studies agree in inputs, settings and results.'
-                : `${diff.deal.length} deal, ${diff.markets.length} market, ${diff.settings.length} setting and ${diff.results.length} result change(s); ${diff.verdicts.length} verdict(s) changed.`}
+                : `Changes: ${count(diff.deal.length, 'deal field')}, ${count(diff.markets.length, 'market field')}, ${count(diff.settings.length, 'setting')}, ${count(diff.results.length, 'result')}; ${count(diff.verdicts.length, 'verdict')} changed.`}
               {diff.sameHash ? ' Same hash.' : ''}
             </p>
             {diff.verdicts.length > 0 && (
@@ -342,7 +348,7 @@ export function ReviewScreen() {
                 <tbody>
                   {diff.verdicts.map((v) => (
                     <tr key={v.factor}>
-                      <td>{v.factor}</td>
+                      <td>{factorShortName(v.factor)}</td>
                       <td>{v.a}</td>
                       <td>{v.b}</td>
                     </tr>
