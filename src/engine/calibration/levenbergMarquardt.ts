@@ -315,10 +315,9 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
         else ({ A, g } = normalEq(J, r));
         mu *= Math.max(1 / 3, 1 - (2 * gain - 1) * (2 * gain - 1) * (2 * gain - 1));
         nu = 2;
-      } else if (secant && !fresh) {
-        // A rejected step from an updated Jacobian: retry from a full one before raising the damping.
-        refresh();
       } else {
+        // A rejected step from an updated Jacobian: the next one starts from a full Jacobian.
+        if (secant && !fresh) refresh();
         mu *= nu;
         nu *= 2;
         if (!Number.isFinite(mu) || mu > 1e30) {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { fitLeastSquares } from '../../../src/engine/calibration/levenbergMarquardt.ts';
+import { fitFromStarts, fitLeastSquares } from '../../../src/engine/calibration/levenbergMarquardt.ts';
 
 // NIST Statistical Reference Datasets, nonlinear regression, "Misra1a" (Misra 1978, lower difficulty):
 // y = b1 (1 − exp(−b2 x)); data and certified values from https://www.itl.nist.gov/div898/strd/nls/data/misra1a.shtml
@@ -125,5 +125,103 @@ describe('Levenberg–Marquardt wrapper', () => {
     });
     expect(r.converged).toBe(false);
     expect(r.stopReason).toBe('non-finite');
+  });
+});
+
+describe('Broyden updates and the multi-start rule', () => {
+  const misraJac = (p: Readonly<Record<string, number>>) =>
+    MISRA_X.map((x) => [1 - Math.exp(-p.b2! * x), p.b1! * x * Math.exp(-p.b2! * x)]);
+
+  for (const [start, b1, b2] of [
+    ['NIST start 1', 500, 1e-4],
+    ['NIST start 2', 250, 5e-4],
+  ] as const)
+    it(`with Broyden updates reaches the certified Misra1a estimates and standard errors from ${start}`, () => {
+      // NIST StRD Misra1a as above (certified values in the header comment).
+      let jacobianCalls = 0;
+      const r = fitLeastSquares(
+        {
+          parameters: [
+            { name: 'b1', initial: b1 },
+            { name: 'b2', initial: b2 },
+          ],
+          residuals: (p) => misra(p.b1!, p.b2!),
+          jacobian: (p) => {
+            jacobianCalls++;
+            return misraJac(p);
+          },
+        },
+        { jacobianUpdate: 'broyden' },
+      );
+      const info = JSON.stringify({
+        params: r.parameters,
+        se: r.standardErrors,
+        stop: r.stopReason,
+        jacobianCalls,
+      });
+      expect(r.converged, info).toBe(true);
+      expect(Math.abs(r.parameters.b1! / 2.3894212918e2 - 1), info).toBeLessThan(1e-7);
+      expect(Math.abs(r.parameters.b2! / 5.5015643181e-4 - 1), info).toBeLessThan(1e-7);
+      // Standard errors from the analytic Jacobian at the solution: 1e-6 relative.
+      expect(Math.abs(r.standardErrors.b1! / 2.7070075241 - 1), info).toBeLessThan(1e-6);
+      expect(Math.abs(r.standardErrors.b2! / 7.2668688436e-6 - 1), info).toBeLessThan(1e-6);
+      // Fewer full Jacobians than iterations: the secant updates stood in for some.
+      expect(r.jacobians, info).toBeLessThan(r.iterations + 1);
+      expect(r.jacobians + 1, info).toBe(jacobianCalls);
+    });
+
+  it('with Broyden updates finds the Rosenbrock minimum (1, 1) from (−1.2, 1)', () => {
+    // Rosenbrock (1960) in the least-squares form of Madsen, Nielsen & Tingleff (2004), Example 3.13.
+    const r = fitLeastSquares(
+      {
+        parameters: [
+          { name: 'x', initial: -1.2 },
+          { name: 'y', initial: 1 },
+        ],
+        residuals: (p) => [10 * (p.y! - p.x! * p.x!), 1 - p.x!],
+        jacobian: (p) => [
+          [-20 * p.x!, 10],
+          [-1, 0],
+        ],
+      },
+      { jacobianUpdate: 'broyden' },
+    );
+    const info = JSON.stringify(r.parameters);
+    expect(r.converged, info).toBe(true);
+    expect(Math.abs(r.parameters.x! - 1), info).toBeLessThan(1e-8);
+    expect(Math.abs(r.parameters.y! - 1), info).toBeLessThan(1e-8);
+  });
+
+  /**
+   * A constructed least-squares problem with two minima: r(x) = (x² − 1, ½(x − 1)), cost (x² − 1)² + ¼(x − 1)², global
+   * minimum 0 at x = 1 and a local one near x = −0.85 (cost ≈ 0.93, RMSE ≈ 0.68): calculus, constructed here.
+   */
+  const twoMinima = (x0: number) =>
+    fitLeastSquares({
+      parameters: [{ name: 'x', initial: x0 }],
+      residuals: (p) => [p.x! * p.x! - 1, 0.5 * (p.x! - 1)],
+    });
+
+  it('keeps searching after a start caught in a poorer local minimum (constructed two-minimum case)', () => {
+    const m = fitFromStarts([-2, 2, 3], twoMinima, 0.01);
+    const info = JSON.stringify(
+      m.runs.map((r) => ({ start: r.start, x: r.fit.parameters.x, rmse: r.fit.rmse })),
+    );
+    expect(m.runs[0]!.fit.parameters.x!, info).toBeLessThan(0);
+    expect(m.runs[0]!.fit.rmse, info).toBeGreaterThan(0.5);
+    // The second start reaches the global minimum within the good-fit level and the third is skipped.
+    expect(m.runs.length, info).toBe(2);
+    expect(Math.abs(m.runs[1]!.fit.parameters.x! - 1), info).toBeLessThan(1e-8);
+    expect(m.skipped).toEqual([3]);
+  });
+
+  it('stops after a first start at the global minimum, and runs every start at goodRmse 0', () => {
+    const early = fitFromStarts([2, -2], twoMinima, 0.01);
+    expect(early.runs.length).toBe(1);
+    expect(early.skipped).toEqual([-2]);
+    expect(Math.abs(early.runs[0]!.fit.parameters.x! - 1)).toBeLessThan(1e-8);
+    const all = fitFromStarts([2, -2], twoMinima, 0);
+    expect(all.runs.length).toBe(2);
+    expect(all.skipped).toEqual([]);
   });
 });
