@@ -132,7 +132,7 @@ export function CalendarPanel(props: {
           rows={Math.min(8, Math.max(3, text.split('\n').length + 1))}
           spellCheck={false}
           value={text}
-          placeholder={'2026-12-25\n2027-01-01'}
+          placeholder="e.g. 2026-12-25 (none yet)"
           aria-invalid={bad}
           aria-describedby={bad ? msgId : undefined}
           data-path={HOLIDAYS_PATH}
