@@ -255,7 +255,11 @@ describe('browser build', () => {
       // On paper only the report: the app frame is hidden by the print style sheet.
       await app.page.emulateMedia({ media: 'print' });
       expect(await app.page.$eval('.frame', (el) => getComputedStyle(el).display)).toBe('none');
-      await app.page.emulateMedia({ media: 'screen' });
+      await app.page.emulateMedia({ media: null });
+      // Printed, the report runs over as many pages as it needs (the app's fixed frame must not cut it to one).
+      const pdf = (await app.page.pdf({ format: 'A4', printBackground: true })).toString('latin1');
+      const pages = (pdf.match(/\/Type\s*\/Page[^s]/g) ?? []).length;
+      expect(pages, 'pages of the printed report').toBeGreaterThan(3);
       await app.shot(shots, 'print-view');
       await app.page.keyboard.press('Escape');
       await app.page.waitForSelector('[data-testid=print-view]', { state: 'detached' });
