@@ -14,7 +14,7 @@
 import { fail, requirePositive } from '../errors.ts';
 import { batchSeed } from '../random/index.ts';
 import { concatSamples } from './concatSamples.ts';
-import { estimateDualGap } from './dualBound.ts';
+import { estimateDualGap, type DualRefinement } from './dualBound.ts';
 import { meanAndSe, mergeExerciseSums, pricingSums } from './pricingPass.ts';
 import { fitExercisePolicy } from './regressionPass.ts';
 import type { ExerciseSource } from './source.ts';
@@ -39,8 +39,11 @@ export interface ExercisePricingSettings {
   /** Basis degree (default 2) and whether the exercise value is a regressor (default false). */
   degree?: number;
   includeExerciseValue?: boolean;
-  /** Dual bound with nested simulation; omitted = no dual bound. */
-  dual?: { outerPaths: number; innerPaths: number };
+  /**
+   * Dual bound with nested simulation; omitted = no dual bound. `nearBoundary`: more inner paths where the policy
+   * is close to indifferent (see {@link DualRefinement}); omitted = `innerPaths` everywhere.
+   */
+  dual?: { outerPaths: number; innerPaths: number; nearBoundary?: DualRefinement };
 }
 
 /** Timings of the passes, in milliseconds. */
@@ -153,6 +156,7 @@ export function priceExerciseRight(
     const g = estimateDualGap(source, reg.policy, {
       nOuter: outerPaths,
       nInner: innerPaths,
+      nearBoundary: settings.dual.nearBoundary,
       outerSeed: exerciseSeeds.dualOuter(settings.seed),
       innerSeed: (p, j) => exerciseSeeds.dualInner(settings.seed, p, j),
     });
@@ -168,6 +172,8 @@ export function priceExerciseRight(
       innerPaths: g.innerPaths,
       millis: dualMs,
     };
+    if (settings.dual.nearBoundary)
+      dual.nearBoundary = { ...settings.dual.nearBoundary, runs: g.nearRuns, of: g.innerRuns };
   }
   const exerciseProbability = right.times.map((time, j) => ({
     time,

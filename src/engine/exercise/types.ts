@@ -148,4 +148,9 @@ export interface DualEstimate {
   /** Inner paths simulated in total, and wall time in milliseconds (cost). */
   innerPaths: number;
   millis: number;
+  /**
+   * With more inner paths near the exercise boundary: the band (width in units of the date's regression rms
+   * residual / √nInner), the inner paths inside it, and how many of the inner runs (outer path × date) fell in it.
+   */
+  nearBoundary?: { width: number; innerPaths: number; runs: number; of: number };
 }
