@@ -241,7 +241,10 @@ export function App(props: { engine: EngineClient }) {
     async (format: 'html' | 'pdf') => {
       const d = docRef.current;
       if (!d.study) {
-        notify('error', 'There is no study to report on yet.');
+        notify(
+          'error',
+          'There is no study to report on yet: run one on the Triage screen or open a saved study.',
+        );
         return;
       }
       try {
@@ -388,7 +391,11 @@ export function App(props: { engine: EngineClient }) {
               <button
                 onClick={() => void saveStudy(false)}
                 disabled={!doc.study}
-                title="Save the study (Ctrl+S)"
+                title={
+                  doc.stale
+                    ? 'Save the study as last run (Ctrl+S); edits made since are kept in the draft — run again to include them'
+                    : 'Save the study (Ctrl+S)'
+                }
               >
                 Save
               </button>

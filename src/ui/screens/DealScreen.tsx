@@ -160,7 +160,10 @@ export function DealScreen() {
       try {
         json = JSON.parse(f.text);
       } catch (e) {
-        notify('error', `${f.name} is not valid JSON: ${errorText(e)}`);
+        notify(
+          'error',
+          `${f.name} is not valid JSON: ${errorText(e)}. Open a deal file saved by this tool, or paste its text into the Deal file (JSON) panel below to see where it breaks.`,
+        );
         return;
       }
       if (!json || typeof json !== 'object' || Array.isArray(json)) {

@@ -102,7 +102,10 @@ export function ReviewScreen() {
       const o = await engine.call('study.open', { text: f.text });
       setOther({ name: f.name, study: o.study });
       if (!o.hash.ok)
-        notify('error', `${f.name}: its content no longer matches its hash (edited after saving).`);
+        notify(
+          'error',
+          `${f.name}: its content no longer matches its hash (edited after saving). The comparison is shown; get the original file, or open this one and verify it, before relying on it.`,
+        );
     } catch (e) {
       setDiffError(`That file was refused: ${errorText(e)}`);
     }
