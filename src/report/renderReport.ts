@@ -413,7 +413,10 @@ conservative.${s.results.budgetParts ? '' : ' This study was written before the 
         return it.targetVolError == null
           ? 'not alone'
           : `vol errors summing below ${fmt(it.targetVolError * 100, 3)} vol points`;
-      return it.room > 0 ? 'a smaller gap' : 'not alone';
+      if (it.room <= 0) return 'not alone';
+      return typeof it.outerPaths === 'number'
+        ? `${fmt(it.outerPaths, 10)} outer paths`
+        : 'a better policy or more inner paths';
     };
     sec.push(`<h2>What would decide the undecided factors</h2>
 <p class="muted">An undecided factor's interval Δ ± (z·SE + b) still reaches τ. Each part of its half-width is shown with the room

@@ -209,6 +209,7 @@ const studySchema = z.object({
               remedy: z.string(),
               maxStep: num.positive().nullable().optional(),
               paths: z.number().int().positive().nullable().optional(),
+              outerPaths: z.number().int().positive().nullable().optional(),
             }),
           ),
           summary: z.string(),

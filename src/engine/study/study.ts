@@ -849,7 +849,15 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         .map((v) => ({ v, r: repricing[v.id]! }))
         .filter((x) => x.r.inBudget !== false && x.r.instrument !== null && x.r.volExcess > 0)
         .sort((a, b) => b.r.volExcess - a.r.volExcess);
-      const dual = pair.map((v) => v.exercise?.dual).find((x) => x) ?? null;
+      const duals = pair.map((v) => v.exercise?.dual).filter((x) => x !== null && x !== undefined);
+      const dual = duals.length
+        ? {
+            outer: duals[0]!.nOuter,
+            inner: duals[0]!.nInner,
+            gap: duals.reduce((t, x) => t + x.gap, 0),
+            noise: duals.reduce((t, x) => t + 2 * x.gapSe, 0),
+          }
+        : null;
       return {
         paths: schedule[schedule.length - 1]!.paths,
         batchSize: S.batchSize,
@@ -866,7 +874,7 @@ export async function runStudy(input: StudyInput, opts: RunStudyOptions = {}): P
         repricing: rep.length
           ? { variant: rep[0]!.v.id, instrument: rep[0]!.r.instrument!, volExcess: rep[0]!.r.volExcess }
           : null,
-        dual: dual ? { outer: dual.nOuter, inner: dual.nInner } : null,
+        dual,
       };
     };
     const whatDecides: Record<string, WhatWouldDecide> = {};

@@ -38,6 +38,12 @@ export interface DecidingItem {
   targetVolError?: number | null;
   /** exerciseGap: the dual bound's outer × inner paths now. */
   dualPaths?: { outer: number; inner: number };
+  /**
+   * exerciseGap: the outer path count at which the gap's noise part 2·SE (∝ 1/√outer) would bring the part into its
+   * room, the gap estimate itself held; null when the gap estimate alone fills the room (a better policy or more
+   * inner paths must shrink it).
+   */
+  outerPaths?: number | null;
   /** noise: the path count at which z·SE would fit in its room (SE ∝ 1/√n, z held); null when none can. */
   paths?: number | null;
 }
@@ -74,8 +80,11 @@ export interface DecidingContext {
   calibration: { variant: string; instrument: string; volError: number } | null;
   /** The variant and vanilla with the largest repricing excess of the two variants of Δ. */
   repricing: { variant: string; instrument: string; volExcess: number } | null;
-  /** The dual bound's paths of the variants (deals with exercise rights). */
-  dual: { outer: number; inner: number } | null;
+  /**
+   * The dual bound of the two variants (deals with exercise rights): its outer × inner paths, and the two variants'
+   * summed gap estimates and summed noise parts 2·SE (the exercise-gap part is their sum).
+   */
+  dual: { outer: number; inner: number; gap?: number; noise?: number } | null;
 }
 
 const pct = (x: number) => `${(Math.round(x * 1e4) / 100).toFixed(2)} vol points`;
@@ -163,14 +172,29 @@ export function whatWouldDecide(args: {
   if ((parts.exerciseGap ?? 0) > 0) {
     const size = parts.exerciseGap!;
     const room = roomOf(size);
+    const du = c.dual;
+    // The part is gap + 2·SE(gap) summed over the two variants; the 2·SE share falls as 1/√outer (independent outer
+    // paths), so it fits when gap + noise·√(outer/outer′) ≤ room.
+    let outer: number | null | undefined;
+    if (du && du.gap !== undefined && du.noise !== undefined) {
+      const gap = Math.max(0, du.gap);
+      outer =
+        room > gap && du.noise > 0
+          ? Math.max(du.outer, Math.ceil(du.outer * ((du.noise / (room - gap)) * (du.noise / (room - gap)))))
+          : null;
+    }
     items.push({
       part: 'exerciseGap',
       size,
       room,
-      ...(c.dual ? { dualPaths: c.dual } : {}),
+      ...(du ? { dualPaths: { outer: du.outer, inner: du.inner } } : {}),
+      ...(outer !== undefined ? { outerPaths: outer } : {}),
       remedy:
-        `more outer and inner paths for the dual bound${c.dual ? ` (now ${c.dual.outer} × ${c.dual.inner})` : ''}, or a better exercise policy (more regression paths)` +
-        (room > 0 ? '' : '; that alone cannot decide: the other parts fill the room'),
+        room <= 0
+          ? `a smaller bound gap${du ? ` (dual bound now ${du.outer} × ${du.inner} paths)` : ''}; that alone cannot decide: the other parts fill the room`
+          : typeof outer === 'number'
+            ? `about ${outer} outer paths for the dual bound (now ${du!.outer}; its noise 2·SE ∝ 1/√outer)`
+            : `a better exercise policy (more regression paths) or more inner paths${du ? ` (now ${du.outer} × ${du.inner})` : ''}: the gap estimate itself fills the room`,
     });
   }
   if (zse > 0) {

@@ -133,6 +133,33 @@ describe('what would decide: calibration, repricing and exercise', () => {
     expect(ex.remedy).toMatch(/500 × 64/);
     for (const x of w.items) expect(x.room).toBeCloseTo(30 - (5 + 54 - x.size), 12);
   });
+  it('the exercise gap: outer paths at which its noise part 2·SE (∝ 1/√outer) brings it into its room', () => {
+    // Part = gap estimates 20 + noise 2·SE 30 = 50; d = 45, z·SE = 4 → room 41 > gap 20: the noise must fall to 21.
+    const parts = { ...noBudget, exerciseGap: 50 };
+    const w = whatWouldDecide({
+      decision: { delta: 55, se: 2, z: 2, budget: 50 },
+      tau: 100,
+      parts,
+      context: ctx({ dual: { outer: 256, inner: 64, gap: 20, noise: 30 } }),
+    });
+    const ex = w.items.find((x) => x.part === 'exerciseGap')!;
+    expect(ex.room).toBeCloseTo(41, 12);
+    const n = ex.outerPaths!;
+    const fits = (m: number) => 20 + 30 * Math.sqrt(256 / m) <= 41 + 1e-9;
+    expect(fits(n), `${n} outer paths`).toBe(true);
+    expect(fits(n - 1), `${n - 1} outer paths`).toBe(false);
+    expect(ex.remedy).toMatch(new RegExp(`about ${n} outer paths`));
+    // When the gap estimate alone fills the room, no outer count can: the policy or the inner paths must improve.
+    const w2 = whatWouldDecide({
+      decision: { delta: 55, se: 2, z: 2, budget: 50 },
+      tau: 100,
+      parts,
+      context: ctx({ dual: { outer: 256, inner: 64, gap: 45, noise: 5 } }),
+    });
+    const ex2 = w2.items.find((x) => x.part === 'exerciseGap')!;
+    expect(ex2.outerPaths).toBeNull();
+    expect(ex2.remedy).toMatch(/better exercise policy/);
+  });
   it('an interval that clears τ but stopped at Holm’s step-down names no part', () => {
     const w = whatWouldDecide({
       decision: { delta: 200, se: 10, z: 2, budget: 5 },
