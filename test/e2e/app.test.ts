@@ -241,6 +241,16 @@ describe('browser build', () => {
       await app.page.click('[data-testid=print-report]');
       await app.page.waitForSelector('[data-testid=print-view]', { timeout: 20_000 });
       await app.page.waitForFunction(() => (window as unknown as { __prints: number }).__prints === 1);
+      // Keyboard: focus starts on the way back and Tab stays within the view (the app behind is inert).
+      expect(await app.page.evaluate(() => document.activeElement?.getAttribute('data-testid'))).toBe(
+        'print-close',
+      );
+      await app.page.keyboard.press('Tab');
+      await app.page.keyboard.press('Tab');
+      expect(
+        await app.page.evaluate(() => !!document.activeElement?.closest('.frame')),
+        'focus must not reach the app behind the print view',
+      ).toBe(false);
       expect(await app.page.textContent('[data-testid=print-caution]')).toMatch(/not investment advice/);
       const report = await app.page.$eval('[data-testid=print-report-body]', (el) => ({
         text: el.shadowRoot?.textContent ?? '',
@@ -263,6 +273,7 @@ describe('browser build', () => {
       await app.shot(shots, 'print-view');
       await app.page.keyboard.press('Escape');
       await app.page.waitForSelector('[data-testid=print-view]', { state: 'detached' });
+      expect(await app.page.getAttribute('.frame', 'inert')).toBeNull();
       expect(await app.page.isVisible('[data-testid=print-report-body]')).toBe(false);
       expect(app.errors).toEqual([]);
     } finally {

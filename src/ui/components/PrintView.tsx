@@ -40,11 +40,15 @@ export function PrintView(props: { html: string; onClose(): void; autoPrint?: bo
     if (!host.current) return;
     mountReport(host.current, html);
     document.documentElement.classList.add('printing');
+    // The app behind the view takes no focus or clicks while the view is open (Tab stays in the view).
+    const frame = document.querySelector('.frame');
+    frame?.setAttribute('inert', '');
     back.current?.focus();
     let raf = 0;
     if (autoPrint) raf = requestAnimationFrame(() => requestAnimationFrame(() => window.print()));
     return () => {
       cancelAnimationFrame(raf);
+      frame?.removeAttribute('inert');
       document.documentElement.classList.remove('printing');
     };
   }, [html, autoPrint]);
