@@ -14,6 +14,10 @@
  * pricing paths, with its own standard error. Inner-path noise makes the estimated gap larger, never smaller
  * (Jensen: E[max] of noisy terms), so the bound stays conservative (their discussion of the bias of the nested estimate).
  *
+ * Two refinements keep the nested cost and noise down: dates where a holder's exercise value is not positive need
+ * no inner paths (below), and {@link DualRefinement} puts more inner paths where the policy is close to
+ * indifferent; both keep the bound valid (arguments beside them).
+ *
  * For an issuer's right the holder's value is an infimum over stopping times; applying the same result to −Z gives
  * a lower bound L̂_0 − E[max_j D'_j] with D' computed on negated values.
  */

@@ -7,7 +7,10 @@
  *    regression pass on its own seed stream, the pricing pass and (with `settings.dual`) the dual bound; the result's
  *    `policy` is plain data to save, `estimate.primal` / `estimate.dual` are the two bounds (the gap
  *    `estimate.dual.gap` ± `gapSe` belongs in the error budget), `estimate.exerciseProbability` the exercise
- *    probabilities and `estimate.biasNote` the direction of each bias;
+ *    probabilities and `estimate.biasNote` the direction of each bias. The dual's inner paths branch from each
+ *    outer path's state (only the steps after the exercise date are simulated); with many exercise dates,
+ *    `settings.dual.nearBoundary` (e.g. `{ width: 2, innerPaths: 4 × innerPaths }`) spends more inner paths where
+ *    the policy is close to indifferent, which lowers the noise-driven part of the gap;
  * 2. paired comparisons across variants on common random numbers: run the simulation runner with the payoff factory
  *    `exercisePayoffFactoryUrl()` and description `{ deals: [{ compiled, policies: { [variantId]: policy } }] }`;
  * 3. verify: re-run step 1 with the same seed and `compareExerciseResults(saved, rerun)` (bit for bit).
