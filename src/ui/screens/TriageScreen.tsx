@@ -321,21 +321,21 @@ function RunPanel(props: { canRun: boolean }) {
         {g && (
           <>
             <NumberField
-              label="Delta threshold (per 1% spot)"
+              label="Delta threshold (bp of notional, per 1% spot)"
               path="settings.greeks.deltaThreshold"
               value={g.deltaThreshold}
               rule={{ above: 0 }}
               onCommit={(v) => set({ greeks: { ...g, deltaThreshold: v } })}
             />
             <NumberField
-              label="Vega threshold (per vol point)"
+              label="Vega threshold (bp of notional, per vol point)"
               path="settings.greeks.vegaThreshold"
               value={g.vegaThreshold}
               rule={{ above: 0 }}
               onCommit={(v) => set({ greeks: { ...g, vegaThreshold: v } })}
             />
             <NumberField
-              label="Rho threshold (per bp)"
+              label="Rho threshold (bp of notional, per bp of rate)"
               path="settings.greeks.rhoThreshold"
               value={g.rhoThreshold}
               rule={{ above: 0 }}
