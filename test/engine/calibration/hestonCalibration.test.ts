@@ -97,6 +97,24 @@ describe('Heston calibration', () => {
     expect(r.spread.kappa!.max).toBeGreaterThanOrEqual(r.spread.kappa!.min);
   });
 
+  it('recovers the same parameters with the analytic Jacobian as with differences', () => {
+    const fd = calibrateHeston({ name: 'EQD', equity: grid, curve });
+    const an = calibrateHeston({ name: 'EQD', equity: grid, curve, jacobian: 'analytic' });
+    const info = JSON.stringify({ differences: fd.params, analytic: an.params, fit: an.fit.stopReason });
+    expect(an.ok, info).toBe(true);
+    // Both converge on the same noiseless quotes: 1e-5 relative (optimiser tolerance), as with every start.
+    for (const n of ['v0', 'kappa', 'theta', 'sigma', 'rho'] as const)
+      expect(Math.abs(fd.params[n] - an.params[n]), `${n}: ${info}`).toBeLessThan(
+        1e-5 * Math.max(1, Math.abs(an.params[n])),
+      );
+    // Standard errors from the analytic Jacobian agree with the differenced ones to 1e-3 relative.
+    for (const n of ['v0', 'kappa', 'theta', 'sigma', 'rho'] as const)
+      expect(
+        Math.abs(an.fit.standardErrors[n]! / fd.fit.standardErrors[n]! - 1),
+        `${n}: ${JSON.stringify([an.fit.standardErrors, fd.fit.standardErrors])}`,
+      ).toBeLessThan(1e-3);
+  });
+
   it('finds the same parameters and RMSE when every start runs (start rule "all")', () => {
     const first = calibrateHeston({ name: 'EQD', equity: grid, curve });
     const all = calibrateHeston({ name: 'EQD', equity: grid, curve, startRule: 'all' });
