@@ -365,7 +365,9 @@ function capletVolError(
  * Stages: rules → calibrated ladder (and vega-bumped, local-vol variants) → early-exercise policies when the deal has
  * rights → step-halving check → vega run → main run in looks (every variant × base, spot ±, rate ± scenarios) →
  * fairness repricing (feeds the repricing part of the budget) → sequential decision, joint test, Shapley shares,
- * hedge-ratio tests → local-vol split → correlation sweeps → other snapshots. All runs share the seed; amounts are in the deal currency.
+ * hedge-ratio tests, what would decide each undecided factor → local-vol split with its step-halving check →
+ * correlation sweeps (a QE study sweeps variance–rate pairs under Euler, with an Euler base point) → other snapshots.
+ * All runs share the seed; amounts are in the deal currency.
  * `opts.makeExecutor(workers)` supplies the batch executor (worker threads in Node, Web Workers in a browser);
  * the default runs batches in this thread. Results are bit-identical for any executor and worker count.
  * Rejects with an EngineError naming the field for bad input, and with `E_CANCELLED` when `opts.signal` aborts.
