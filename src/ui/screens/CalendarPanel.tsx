@@ -57,7 +57,16 @@ export function CalendarPanel(props: {
   const cal = deal.calendar;
   const weekends = cal?.weekends !== false;
   const holidays = cal?.holidays ?? [];
-  const text = raw[HOLIDAYS_PATH] ?? holidays.join('\n');
+  // The typed text (header, names, layout) is shown while it still reads as the deal's list; a deal replaced
+  // underneath (a template, an opened file) shows its own list instead.
+  const typed = raw[HOLIDAYS_PATH];
+  const typedList = typed === undefined ? null : readHolidayText(typed).map((e) => e.date);
+  const text =
+    typed !== undefined &&
+    typedList!.length === holidays.length &&
+    typedList!.every((d, i) => d === holidays[i])
+      ? typed
+      : holidays.join('\n');
   const entries = readHolidayText(text);
   const usesRoll = Object.values(deal.schedules ?? {}).some((s) => (s.roll ?? 'none') !== 'none');
   const usesBusinessSteps = Object.values(deal.schedules ?? {}).some(

@@ -81,6 +81,13 @@ describe('Deal screen: business days', () => {
     // The text stays exactly as typed, header included.
     expect(html).toContain('date\n2026-12-25\n2026-13-01</textarea>');
   });
+  it('shows the deal’s own list when the typed text belongs to a deal that was replaced', () => {
+    const deal = read('autocallable-memory.json');
+    deal.calendar = { holidays: ['2027-01-01'] };
+    const html = renderPanel(deal, { 'deal.calendar.holidays': 'date\n2026-12-25' });
+    expect(html).toContain('>2027-01-01</textarea>');
+    expect(html).not.toContain('2026-12-25</textarea>');
+  });
   it('has no message for a valid calendar and says whether the deal uses it', () => {
     const deal = read('autocallable-memory.json');
     deal.calendar = { holidays: ['2026-12-25'], weekends: true };
