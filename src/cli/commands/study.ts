@@ -302,6 +302,12 @@ export function summaryLines(s: SavedStudy): string[] {
         `  budget of ${FACTOR_LABELS[v.factor].split(' (')[0]}: step halving ${f(b.stepHalving)}, calibration ${f(b.calibration)}, repricing ${f(b.repricing ?? 0)}${b.exerciseGap === null ? '' : `, exercise gap ${f(b.exerciseGap)}`} ${ccy}`,
       );
     }
+  // Undecided factors: what would decide them (older study files carry none).
+  for (const v of s.verdicts) {
+    const w = s.results.whatWouldDecide?.[v.factor];
+    if (v.verdict === 'undecided' && w)
+      lines.push(`  ${FACTOR_LABELS[v.factor].split(' (')[0]} is undecided: ${w.summary}`);
+  }
   lines.push('', `Recommended model: ${s.recommended.summary}`);
   const j = s.results.joint;
   if (j && j.outcome !== 'nothingDropped')
