@@ -211,11 +211,15 @@ describe('browser build', () => {
       expect(await app.page.inputValue(list)).toBe(typed);
       expect(await app.page.textContent('[data-testid=deal-status]')).toMatch(/1 problem/);
       await app.shot(shots, 'deal-calendar', '[data-testid=deal-calendar]');
-      await app.page.fill(list, typed.replace('2027-02-30', '2027-02-26'));
+      await app.page.fill(list, typed.replace('2027-02-30', '2027-02-23'));
       await app.page.waitForFunction(() =>
         document.querySelector('[data-testid=deal-status]')?.textContent?.includes('No problems'),
       );
       expect(await app.page.$('[data-testid=calendar-problems]')).toBeNull();
+      // The schedule shows which of its dates move: the holiday on a coupon date goes to the next business day.
+      expect(await app.page.textContent('[data-testid=rolled-quarterly]')).toMatch(
+        /2027-02-23 → 2027-02-2[4-6]/,
+      );
       // The roll survives editing the schedule's other fields.
       await app.fill('deal.schedules.quarterly.every', '6M');
       expect(await app.page.inputValue(`[data-path="${roll}"]`)).toBe('modifiedFollowing');

@@ -21,6 +21,7 @@ import { VerdictMark } from '../components/verdict.tsx';
 import { formShapeProblem } from '../state/dealShape.ts';
 import { ScreenBoundary } from '../components/ScreenBoundary.tsx';
 import { CalendarPanel } from './CalendarPanel.tsx';
+import { rolledDates, type RolledDate } from './rolledDates.ts';
 
 const FACTOR_SHORT: Record<string, string> = {
   stochVol: 'Stochastic vol',
@@ -512,7 +513,15 @@ export function DealScreen() {
       <section className="panel">
         <h2>Schedules</h2>
         {Object.entries(deal.schedules ?? {}).map(([k, s]) => (
-          <ScheduleRow key={k} id={k} schedule={s} names={names} update={update} mark={mark} />
+          <ScheduleRow
+            key={k}
+            id={k}
+            schedule={s}
+            names={names}
+            update={update}
+            mark={mark}
+            moved={rolledDates(deal, k)}
+          />
         ))}
         <button
           onClick={() =>
@@ -769,6 +778,8 @@ function ScheduleRow(props: {
   names: string[];
   update(f: Mutator): void;
   mark(p: string): string;
+  /** Dates the roll convention moves (null: the schedule does not roll, or cannot be expanded yet). */
+  moved: RolledDate[] | null;
 }) {
   const { id, schedule: s, update, mark } = props;
   const p = `deal.schedules.${id}`;
@@ -872,6 +883,16 @@ function ScheduleRow(props: {
       >
         ✕
       </button>
+      {props.moved && (
+        <p className="hint rolled" data-testid={`rolled-${id}`}>
+          {props.moved.length === 0
+            ? 'Every date is a business day: nothing moves.'
+            : `Moved: ${props.moved
+                .slice(0, 6)
+                .map((m) => `${m.from} → ${m.to}`)
+                .join(', ')}${props.moved.length > 6 ? ` and ${props.moved.length - 6} more` : ''}.`}
+        </p>
+      )}
     </div>
   );
 }
