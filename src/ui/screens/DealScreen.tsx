@@ -227,13 +227,14 @@ export function DealScreen() {
             path={mark('deal.notional')}
             value={deal.notional}
             rule={{ above: 0 }}
+            suffix={deal.currency || undefined}
             onCommit={(v) => update((d) => void (d.notional = v))}
           />
           <TextField
             label="Payment currency"
             path={mark('deal.currency')}
             value={deal.currency ?? ''}
-            compact
+            placeholder="e.g. DOM"
             onChange={(v) => update((d) => void (d.currency = v.toUpperCase()))}
           />
           <TextField

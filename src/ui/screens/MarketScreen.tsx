@@ -322,8 +322,8 @@ function Curves(props: { m: MarketSnapshot; edit: Edit }) {
         <LineChart
           title="Zero curves"
           series={series}
-          xLabel="years"
-          yLabel="zero rate"
+          xLabel="maturity (years)"
+          yLabel="zero rate (cont.)"
           yFormat={(v) => pct(v, 2)}
         />
       </div>
@@ -495,7 +495,13 @@ function RateVols(props: { m: MarketSnapshot; edit: Edit }) {
       <LineChart
         title="Rate vols against expiry"
         xLabel="expiry (years)"
-        yLabel="vol"
+        yLabel={
+          entries.every(([, rv]) => rv.type === 'normal')
+            ? 'normal vol (bp)'
+            : entries.every(([, rv]) => rv.type !== 'normal')
+              ? 'lognormal vol (%)'
+              : 'vol (normal in bp, lognormal in %)'
+        }
         series={entries.map(([ccy, rv]) => ({
           name: `${ccy} (${rv.type})`,
           points: rv.quotes.map((q) => ({
