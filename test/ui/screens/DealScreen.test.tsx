@@ -86,3 +86,14 @@ describe('Deal screen: past fixings', () => {
     expect(cell).toContain('remove it');
   });
 });
+
+describe('Deal screen: basics', () => {
+  it('shows the notional with the deal currency beside it and labels the payment currency', () => {
+    const deal = read('worst-of-quanto.json');
+    const html = renderScreen(deal);
+    expect(html).toMatch(
+      new RegExp(`data-path="deal\\.notional"[^>]*/><span class="suffix">${deal.currency}</span>`),
+    );
+    expect(html).toMatch(/<div class="field  +"><label[^>]*>Payment currency<\/label>/);
+  });
+});
