@@ -426,7 +426,7 @@ const StudyResults = memo(function StudyResults(props: { study: SavedStudy; stal
               <div className="vc-long">{longName(v.factor)}</div>
               {d ? (
                 <dl className="vc-nums">
-                  <dt>Δ price</dt>
+                  <dt title="price change from switching the factor off, ± z·SE">Δ price ± z·SE</dt>
                   <dd>
                     {num(d.delta, 4)} ± {num(d.z * d.se, 3)} {ccy}
                   </dd>
