@@ -200,6 +200,8 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
   let stopReason: StopReason = 'max-evaluations';
   let iterations = 0;
   let jacobians = 0;
+  /** The iteration's last Jacobian (in z) when it was computed in full at the final point. */
+  let finalJz: number[][] | undefined;
   const secant = options.jacobianUpdate === 'broyden';
   if (!finite(r)) stopReason = 'non-finite';
   else if (n > 0) {
@@ -326,6 +328,7 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
         }
       }
     }
+    if (fresh) finalJz = J;
   } else stopReason = 'zero-residual';
 
   const params = toParams(z);
@@ -342,7 +345,8 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
     stopReason === 'zero-residual';
 
   // Standard errors and conditioning from a Jacobian in the parameters themselves: the problem's analytic one when
-  // it has one, else one-sided differences (away from bounds).
+  // it has one, else the iteration's own full Jacobian at the solution (when no parameter sits so close to a bound
+  // that dp/dz nearly vanishes), else one-sided differences (away from bounds).
   const standardErrors: Record<string, number> = {};
   let conditionNumber = NaN;
   const warnings: FieldIssue[] = [];
@@ -352,6 +356,13 @@ export function fitLeastSquares(problem: FitProblem, options: FitOptions = {}): 
     if (Ja)
       for (let i = 0; i < m; i++)
         for (let j = 0; j < n; j++) Jp[i]![j] = Ja[i]![j]! * (weights ? weights[i]! : 1);
+    else if (
+      finalJz &&
+      free.every((par, j) => tr[j]!.dPdZ(z[j]!) > 1e-6 * Math.max(Math.abs(params[par.name]!), 1e-3))
+    )
+      // The iteration's full Jacobian at this point, ∂(w r)/∂z, divided by dp/dz (chain rule): no new evaluations.
+      for (let i = 0; i < m; i++)
+        for (let j = 0; j < n; j++) Jp[i]![j] = finalJz[i]![j]! / tr[j]!.dPdZ(z[j]!);
     else
       free.forEach((par, j) => {
         const p0 = params[par.name]!;
