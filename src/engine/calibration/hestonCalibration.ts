@@ -2,8 +2,11 @@
  * Heston calibration to an implied-vol grid by COS pricing (Fang & Oosterlee 2008), optionally under Hull–White
  * rates through the H1-HW characteristic function (Grzelak & Oosterlee 2011). Residuals are vega-weighted price
  * errors (model − market)/vega_market, i.e. first-order implied-vol errors in decimals (common practice), or on
- * request exact implied-vol errors; the report gives exact implied-vol errors at the solution either way. Several starting points are run, the best kept,
- * and the spread of the others reported. The Feller ratio 2κθ/σ² is a reported diagnostic, not imposed.
+ * request exact implied-vol errors; the report gives exact implied-vol errors at the solution either way. Several
+ * starting points are run in order, the best kept and the spread of the others reported; by default the remaining
+ * starts are skipped once one fits within a tenth of the tolerance (`startRule`, stated in the report). The optimiser
+ * updates its Jacobian by Broyden steps between full ones (`jacobian`: differences or analytic). The Feller ratio
+ * 2κθ/σ² is a reported diagnostic, not imposed.
  */
 import type { DiscountCurve, EquityQuote } from '../market/types.ts';
 import type { HestonParams } from '../simulation/types.ts';
