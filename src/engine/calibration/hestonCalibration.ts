@@ -52,6 +52,11 @@ export interface VanillaFitRow {
   volErrorPoints: number;
   weight: number;
   field: string;
+  /**
+   * True when the model price lies outside the Black–Scholes no-arbitrage bounds, so it has no implied vol: then
+   * `modelVol` is the first-order vol market vol + price error / vega (the residual the fit itself uses).
+   */
+  volFromPrice?: boolean;
 }
 
 export interface HestonCalibrationInput {
@@ -521,7 +526,12 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
   }
   const rows: VanillaFitRow[] = quotes.map((q, i) => {
     const tvol = shift ? q.vol + shift[i]! : q.vol;
-    const mv = blackImpliedVol({ ...q, price: model[i]! });
+    const implied = blackImpliedVol({ ...q, price: model[i]! });
+    const priceError = model[i]! - target[i]!;
+    // A model price outside the no-arbitrage bounds (e.g. a far wing the model cannot reach) has no implied vol:
+    // report the first-order vol from the price error and its vega floor, the residual the optimiser used.
+    const fromPrice = !Number.isFinite(implied);
+    const mv = fromPrice ? tvol + priceError / scale[i]! : implied;
     return {
       expiry: q.expiry,
       strike: q.strike,
@@ -530,15 +540,14 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
       modelVol: mv,
       marketPrice: q.price,
       modelPrice: model[i]!,
-      priceError: model[i]! - target[i]!,
+      priceError,
       volErrorPoints: (mv - tvol) * 100,
       weight: input.weights?.[i] ?? 1,
       field: q.field,
+      ...(fromPrice ? { volFromPrice: true } : {}),
     };
   });
-  const volErr = rows.map((r) =>
-    Number.isFinite(r.volErrorPoints) ? r.volErrorPoints : (r.priceError / scale[rows.indexOf(r)]!) * 100,
-  );
+  const volErr = rows.map((r) => r.volErrorPoints);
   const rmseVolPoints = Math.sqrt(volErr.reduce((s, x) => s + x * x, 0) / volErr.length);
   const maxAbsVolPoints = Math.max(...volErr.map(Math.abs));
   const good = runs.filter((r) => r.fit.converged && cost(r.fit) <= 4 * cost(best.fit) + 1e-14);
@@ -548,6 +557,18 @@ export function calibrateHeston(input: HestonCalibrationInput): HestonCalibratio
     spread[n] = { min: Math.min(...vals), max: Math.max(...vals) };
   }
   const warnings = [...bestFit.warnings];
+  const noVol = rows.filter((r) => r.volFromPrice);
+  if (noVol.length)
+    warnings.push(
+      issue(
+        'W_NO_IMPLIED_VOL',
+        `${field}.vols`,
+        `the fitted model's price must lie inside the Black–Scholes bounds to have an implied vol; ${noVol.length} quote(s) do not (vol error shown to first order from the price error)`,
+        noVol.map((r) => `K=${r.strike} T=${r.expiry}`).join(', '),
+        'the model cannot reach these quotes: check them, or accept and report the residuals',
+        'warning',
+      ),
+    );
   if (!(pricer.finalDisagreementVolPoints <= PRICER_CHECK_VOL_POINTS))
     warnings.push(
       issue(

@@ -1,3 +1,4 @@
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import seedrandom from 'seedrandom';
 import { calibrateHeston, hestonModelPrices } from '../../../src/engine/calibration/hestonCalibration.ts';
@@ -8,7 +9,7 @@ import { makeCurve } from '../../../src/engine/market/index.ts';
 import { hestonLewis } from '../../../src/engine/models/index.ts';
 import { EngineError } from '../../../src/engine/errors.ts';
 import { EXPIRIES, FO_HESTON, MONEYNESS, flatCurveSpec, hestonGrid } from './syntheticMarket.ts';
-import type { EquityQuote } from '../../../src/engine/market/types.ts';
+import type { EquityQuote, MarketSnapshot } from '../../../src/engine/market/types.ts';
 
 const curveSpec = flatCurveSpec('DOM', 0.02);
 const curve = makeCurve(curveSpec);
@@ -230,5 +231,37 @@ describe('Heston calibration', () => {
     });
     expect(r.ok).toBe(false);
     expect(r.warnings.map((w) => w.code)).toContain('W_FIT_NOT_CONVERGED');
+  });
+});
+
+describe('quotes the fitted model cannot reach', () => {
+  it('a model price outside the Black–Scholes bounds is reported with a finite first-order vol and a warning', () => {
+    // A skew no Heston parameter set reaches (35 % at 70 % moneyness down to 5 % at 130 %) on the invented demo
+    // equity, expiries up to 2y (on longer ones this skew is a static arbitrage, refused before any fit): a far wing
+    // gets a model price outside the no-arbitrage bounds, which has no implied vol (the Black–Scholes price is
+    // increasing in vol between intrinsic value and the forward: common practice). The row must stay a number.
+    const m = JSON.parse(
+      readFileSync(new URL('../../../samples/market/demo-market.json', import.meta.url), 'utf8'),
+    ) as MarketSnapshot;
+    const q = m.equities.ALDR!;
+    const keep = q.vols.expiries.filter((t) => t <= 2).length;
+    const steep: EquityQuote = {
+      ...q,
+      vols: {
+        ...q.vols,
+        expiries: q.vols.expiries.slice(0, keep),
+        vols: q.vols.vols
+          .slice(0, keep)
+          .map((row) => row.map((_, j) => 0.2 + 0.5 * (1 - q.vols.moneyness![j]!))),
+      },
+    };
+    const r = calibrateHeston({ name: 'ALDR', equity: steep, curve: makeCurve(m.curves.DOM!) });
+    for (const row of r.rows) {
+      expect(Number.isFinite(row.modelVol), `K=${row.strike} T=${row.expiry}`).toBe(true);
+      expect(Number.isFinite(row.volErrorPoints)).toBe(true);
+    }
+    const flagged = r.rows.filter((x) => x.volFromPrice);
+    expect(flagged.length).toBeGreaterThan(0);
+    expect(r.warnings.map((w) => w.code)).toContain('W_NO_IMPLIED_VOL');
   });
 });
