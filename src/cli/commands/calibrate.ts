@@ -289,7 +289,7 @@ function render(
     ))
       io.out('  ' + l);
     io.out(
-      `  RMSE ${f(rep.rmseVolPoints, 3)} vol points, max ${f(rep.maxAbsVolPoints, 3)}; Feller ratio 2κθ/σ² = ${f(rep.feller.ratio, 3)} (${rep.feller.satisfied ? 'met' : 'not met: variance can reach 0'}); stop: ${rep.fit.stopReason}; condition ${f(rep.fit.conditionNumber, 1)}; ${rep.starts.length} starts; ${f(rep.seconds * 1e3, 0)} ms${rep.ok ? '' : '  ** FIT NOT ACCEPTED **'}`,
+      `  RMSE ${f(rep.rmseVolPoints, 3)} vol points, max ${f(rep.maxAbsVolPoints, 3)}; Feller ratio 2κθ/σ² = ${f(rep.feller.ratio, 3)} (${rep.feller.satisfied ? 'met' : 'not met: variance can reach 0'}); stop: ${rep.fit.stopReason}; condition ${f(rep.fit.conditionNumber, 1)}; ${rep.starts.length} start${rep.starts.length === 1 ? '' : 's'} run${rep.skippedStarts?.starts.length ? ` (${rep.skippedStarts.starts.length} skipped: a good fit came first)` : ''}; ${f(rep.seconds * 1e3, 0)} ms${rep.ok ? '' : '  ** FIT NOT ACCEPTED **'}`,
     );
     const worst = rep.rows
       .slice()
