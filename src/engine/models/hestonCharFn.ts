@@ -78,7 +78,8 @@ export function hestonCharFn(params: HestonParams, T: number, u: Complex): Compl
 
 /**
  * The exponent C + D v₀ and D on a grid of real u, inlined arithmetic (no allocation per point). Writes
- * Re/Im of C + D v₀ into `eRe`, `eIm` and of D into `dRe`, `dIm` (each of length `u.length`).
+ * Re/Im of C + D v₀ into `eRe`, `eIm` and of D into `dRe`, `dIm` (each of length `u.length`). The real line is the
+ * shifted one of {@link hestonExponentShiftedGrid} at shift 0 (the same arithmetic, term for term).
  */
 export function hestonExponentGrid(
   params: HestonParams,
@@ -89,93 +90,7 @@ export function hestonExponentGrid(
   dRe?: Float64Array,
   dIm?: Float64Array,
 ): void {
-  const { v0, kappa, theta, sigma, rho } = params;
-  const s2 = sigma * sigma;
-  const kt = kappa * theta;
-  const twoKtOverS2 = (2 * kt) / s2;
-  for (let j = 0; j < u.length; j++) {
-    const uj = u[j]!;
-    // ξ = κ − iρσu
-    const xr = kappa;
-    const xiI = -rho * sigma * uj;
-    // q = iu + u²
-    const qr = uj * uj;
-    const qi = uj;
-    // d² = ξ² + σ² q
-    const d2r = xr * xr - xiI * xiI + s2 * qr;
-    const d2i = 2 * xr * xiI + s2 * qi;
-    // principal sqrt
-    const mod = Math.sqrt(d2r * d2r + d2i * d2i); // Math.hypot is several times slower in V8
-    let dr = Math.sqrt(0.5 * (mod + d2r));
-    let di = Math.sqrt(Math.max(0, 0.5 * (mod - d2r)));
-    if (d2i < 0) di = -di;
-    if (dr === 0 && di === 0) {
-      dr = 0;
-      di = 0;
-    }
-    // p = ξ + d
-    const pr = xr + dr;
-    const pi = xiI + di;
-    const ipden = 1 / (pr * pr + pi * pi);
-    // m = (ξ − d)/σ² = −q/p
-    const mr = -(qr * pr + qi * pi) * ipden;
-    const mi = -(qi * pr - qr * pi) * ipden;
-    // g = m σ² / p
-    const gnr = mr * s2;
-    const gni = mi * s2;
-    const gr = (gnr * pr + gni * pi) * ipden;
-    const gi = (gni * pr - gnr * pi) * ipden;
-    // e = exp(−dT)
-    // e^{−dT}: below 2⁻⁶⁰ it no longer changes 1 − e or 1 − g e in double precision, so it is skipped.
-    const drT = dr * T;
-    let er = 0;
-    let ei = 0;
-    if (drT < 41.6) {
-      const ex = exp(-drT);
-      er = ex * cos(di * T);
-      ei = -ex * sin(di * T);
-    }
-    // 1 − e, 1 − g e
-    const ome_r = 1 - er;
-    const ome_i = -ei;
-    const omge_r = 1 - (gr * er - gi * ei);
-    const omge_i = -(gr * ei + gi * er);
-    // D = m (1 − e)/(1 − g e)
-    const nr = mr * ome_r - mi * ome_i;
-    const ni = mr * ome_i + mi * ome_r;
-    const iden = 1 / (omge_r * omge_r + omge_i * omge_i);
-    const Dr = (nr * omge_r + ni * omge_i) * iden;
-    const Di = (ni * omge_r - nr * omge_i) * iden;
-    // w = g (1 − e)/(1 − g)
-    const wnr = gr * ome_r - gi * ome_i;
-    const wni = gr * ome_i + gi * ome_r;
-    const omgr = 1 - gr;
-    const omgi = -gi;
-    const iwden = 1 / (omgr * omgr + omgi * omgi);
-    const wr = (wnr * omgr + wni * omgi) * iwden;
-    const wi = (wni * omgr - wnr * omgi) * iwden;
-    let Lr: number;
-    let Li: number;
-    if (wr * wr + wi * wi < 1e-10) {
-      const w2r = wr * wr - wi * wi;
-      const w2i = 2 * wr * wi;
-      const w3r = w2r * wr - w2i * wi;
-      const w3i = w2r * wi + w2i * wr;
-      Lr = wr - 0.5 * w2r + w3r / 3;
-      Li = wi - 0.5 * w2i + w3i / 3;
-    } else {
-      Lr = 0.5 * log((1 + wr) * (1 + wr) + wi * wi);
-      Li = atan2(wi, 1 + wr);
-    }
-    const Cr = kt * T * mr - twoKtOverS2 * Lr;
-    const Ci = kt * T * mi - twoKtOverS2 * Li;
-    eRe[j] = Cr + v0 * Dr;
-    eIm[j] = Ci + v0 * Di;
-    if (dRe && dIm) {
-      dRe[j] = Dr;
-      dIm[j] = Di;
-    }
-  }
+  hestonExponentShiftedGrid(params, T, u, 0, eRe, eIm, dRe, dIm);
 }
 
 /**
@@ -183,7 +98,8 @@ export function hestonExponentGrid(
  * complex arithmetic of the same little-trap form as {@link hestonCharFn} (Albrecher et al. 2007), term for term:
  * iz = (shift, u), ξ = κ − ρσ·iz, q = iz + z², d = √(ξ² + σ²q) principal, m = −q/(ξ + d), g₂ = mσ²/(ξ + d),
  * D = m(1 − e^{−dT})/(1 − g₂e^{−dT}), C = κθT m − (2κθ/σ²) ln(1 + w), w = g₂(1 − e^{−dT})/(1 − g₂).
- * Writes Re and Im of the exponent into `eRe`, `eIm`. Tests check it against the `Complex` version.
+ * Writes Re and Im of the exponent into `eRe`, `eIm` (and of D into `dRe`, `dIm` when given). Tests check it against
+ * the `Complex` version.
  */
 export function hestonExponentShiftedGrid(
   params: HestonParams,
@@ -192,6 +108,8 @@ export function hestonExponentShiftedGrid(
   shift: number,
   eRe: Float64Array,
   eIm: Float64Array,
+  dRe?: Float64Array,
+  dIm?: Float64Array,
 ): void {
   const { v0, kappa, theta, sigma, rho } = params;
   const s2 = sigma * sigma;
@@ -258,6 +176,10 @@ export function hestonExponentShiftedGrid(
     }
     eRe[j] = kt * T * mr - twoKtOverS2 * Lr + v0 * Dr;
     eIm[j] = kt * T * mi - twoKtOverS2 * Li + v0 * Di;
+    if (dRe && dIm) {
+      dRe[j] = Dr;
+      dIm[j] = Di;
+    }
   }
 }
 
