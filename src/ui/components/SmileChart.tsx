@@ -5,6 +5,7 @@
  * pressing one brings that curve forward and fades the others (keyboard: Tab, then Enter or Space).
  */
 import { useId, useState } from 'react';
+import { AxisFrame } from './charts.tsx';
 
 export interface SmilePoint {
   x: number;
@@ -105,20 +106,7 @@ export function SmileChart(props: {
             </text>
           </g>
         ))}
-        <line x1={m.l} x2={W - m.r} y1={H - m.b} y2={H - m.b} className="axis" />
-        <line x1={m.l} x2={m.l} y1={m.t} y2={H - m.b} className="axis" />
-        <text x={(m.l + W - m.r) / 2} y={H - 6} textAnchor="middle" className="axis-label">
-          {props.xLabel}
-        </text>
-        <text
-          x={13}
-          y={(m.t + H - m.b) / 2}
-          textAnchor="middle"
-          className="axis-label"
-          transform={`rotate(-90 13 ${(m.t + H - m.b) / 2})`}
-        >
-          {props.yLabel}
-        </text>
+        <AxisFrame width={W} height={H} margin={m} xLabel={props.xLabel} yLabel={props.yLabel} yLabelX={13} />
         {order.map(({ c, i }) => {
           const colour = curveColour(i, n);
           const faded = active !== null && c.key !== active;

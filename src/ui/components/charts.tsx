@@ -58,6 +58,42 @@ function extent(values: number[]): [number, number] {
 }
 
 /** A line chart with axes, ticks and a legend. `yFormat` formats tick labels. */
+/**
+ * The two axis lines of a plot area and their labels (x below, y rotated on the left), shared by the charts.
+ * `margin` is the plot area's distance from each edge of the `width` × `height` drawing.
+ */
+export function AxisFrame(props: {
+  width: number;
+  height: number;
+  margin: { l: number; r: number; t: number; b: number };
+  xLabel: string;
+  yLabel: string;
+  /** x of the rotated y label's centre (default 12). */
+  yLabelX?: number;
+}) {
+  const { width: W, height: H, margin: m } = props;
+  const yx = props.yLabelX ?? 12;
+  const midY = (m.t + H - m.b) / 2;
+  return (
+    <>
+      <line x1={m.l} x2={W - m.r} y1={H - m.b} y2={H - m.b} className="axis" />
+      <line x1={m.l} x2={m.l} y1={m.t} y2={H - m.b} className="axis" />
+      <text x={(m.l + W - m.r) / 2} y={H - 6} textAnchor="middle" className="axis-label">
+        {props.xLabel}
+      </text>
+      <text
+        x={yx}
+        y={midY}
+        textAnchor="middle"
+        className="axis-label"
+        transform={`rotate(-90 ${yx} ${midY})`}
+      >
+        {props.yLabel}
+      </text>
+    </>
+  );
+}
+
 export function LineChart(props: {
   title: string;
   series: LineSeries[];
@@ -102,20 +138,7 @@ export function LineChart(props: {
             {xf(v)}
           </text>
         ))}
-        <line x1={m.l} x2={W - m.r} y1={H - m.b} y2={H - m.b} className="axis" />
-        <line x1={m.l} x2={m.l} y1={m.t} y2={H - m.b} className="axis" />
-        <text x={(m.l + W - m.r) / 2} y={H - 6} textAnchor="middle" className="axis-label">
-          {props.xLabel}
-        </text>
-        <text
-          x={12}
-          y={(m.t + H - m.b) / 2}
-          textAnchor="middle"
-          className="axis-label"
-          transform={`rotate(-90 12 ${(m.t + H - m.b) / 2})`}
-        >
-          {props.yLabel}
-        </text>
+        <AxisFrame width={W} height={H} margin={m} xLabel={props.xLabel} yLabel={props.yLabel} />
         {props.series.map((s, i) => {
           const colour = TONES[(s.tone ?? i) % TONES.length];
           const sorted = [...s.points].filter((p) => Number.isFinite(p.y)).sort((a, b) => a.x - b.x);
